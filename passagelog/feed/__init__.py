@@ -1,0 +1,1 @@
+"""Live NMEA 0183 input."""

@@ -1,0 +1,1 @@
+"""Tables and figures out of review results: CSV, Markdown, HTML, JSON, SVG."""

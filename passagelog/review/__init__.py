@@ -1,0 +1,1 @@
+"""The reconciliation engine: fixes against the plan, per fix and per leg."""

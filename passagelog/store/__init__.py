@@ -1,0 +1,1 @@
+"""The SQLite logbook: schema, migrations, append-only records, integrity chain."""
