@@ -1,0 +1,391 @@
+"""Latitudes, longitudes and positions: reading every notation a navigator types, and printing.
+
+Accepted on input (case-insensitive hemisphere letters, any spacing)::
+
+    47°36.512'N 122°20.107'W     degrees and decimal minutes, hemisphere after
+    47 36.512N 122 20.107W       the same with spaces for symbols (the ASCII form we print)
+    N47°36.512' W122°20.107'     hemisphere before
+    47°36'30.7"N                 degrees, minutes, seconds
+    47-36.512N                   a dash between degrees and minutes
+    47.6085, -122.3351           signed decimal degrees, comma or space between
+    47.6085N 122.3351W           decimal degrees with hemisphere letters
+
+Degree signs: ``°`` ``º`` ``˚`` ``d`` ``deg``; minute signs: ``'`` ``′`` ``’`` ``‘`` ``´`` `````;
+second signs: ``"`` ``″`` ``”`` ``“`` ``''`` ``′′``; minus: ``-`` ``−`` ``–``. Only the last
+component may carry a decimal fraction. Latitude is written first in a position. A sign and a
+hemisphere letter never go together; minutes and seconds are below 60; |lat| <= 90 and
+|lon| <= 180 (longitudes are returned folded into [-180, 180), so 180°E reads as -180).
+
+Printed (:func:`format_position`): degrees zero-padded to two digits for latitude and three for
+longitude, minutes and seconds to two, as on charts: ``05°03.100'S 004°01.000'W``. Rounding
+carries into the next minute or degree (59.9996' prints as the next degree, never 60.000').
+A position that rounds to zero on a parallel or meridian prints N or E. The ASCII form replaces
+the symbols with spaces (``05 03.100S 004 01.000W``) and reads back with :func:`parse_position`.
+"""
+
+from __future__ import annotations
+
+import math
+import re
+from dataclasses import dataclass, field
+
+from passagelog.errors import PositionError
+
+STYLES = ("dm", "dms", "decimal")
+
+_DEG_SIGNS = "°º˚"
+_MIN_SIGNS = "'′’‘´`"
+_SEC_SIGNS = '"″”“'
+_MINUS_SIGNS = "-−–"
+
+_TOKEN = re.compile(
+    r"""
+    (?P<space>\s+)
+  | (?P<number>\d+(?:\.\d*)?|\.\d+)
+  | (?P<sec>''|′′|’’|[""" + _SEC_SIGNS + r"""])
+  | (?P<min>[""" + _MIN_SIGNS + r"""])
+  | (?P<deg>[""" + _DEG_SIGNS + r"""])
+  | (?P<minus>[""" + _MINUS_SIGNS + r"""])
+  | (?P<plus>\+)
+  | (?P<comma>[,;])
+  | (?P<word>[^\W\d_]+)
+  | (?P<other>.)
+    """,
+    re.VERBOSE,
+)
+
+_ROLE_NAMES = ("degrees", "minutes", "seconds")
+_ROLE_OF_SIGN = {"deg": 0, "min": 1, "sec": 2}
+
+
+@dataclass
+class _Coord:
+    """One coordinate while it is being read."""
+
+    lead_hemi: str | None = None
+    sign: str | None = None
+    parts: list[tuple[str, int]] = field(default_factory=list)  # (digits, role)
+    trail_hemi: str | None = None
+
+    @property
+    def hemi(self) -> str | None:
+        return self.lead_hemi or self.trail_hemi
+
+    def next_role(self) -> int | None:
+        """The role a bare number would take next, or None when no more can follow."""
+        if not self.parts:
+            return 0
+        digits, role = self.parts[-1]
+        if "." in digits or role >= 2:
+            return None
+        return role + 1
+
+
+def _fail(text: str, why: str, what: str = "position") -> PositionError:
+    return PositionError(f"cannot read {what} {text!r}: {why}")
+
+
+def _tokens(text: str):
+    """(kind, value, preceded_by_space) for each token; whitespace is folded into the flag."""
+    spaced = True
+    for m in _TOKEN.finditer(text):
+        kind = m.lastgroup
+        value = m.group()
+        if kind == "space":
+            spaced = True
+            continue
+        yield kind, value, spaced
+        spaced = False
+
+
+_EXAMPLES = {
+    "position": "a latitude and a longitude such as 47°36.512'N 122°20.107'W",
+    "latitude": "a latitude such as 47°36.512'N",
+    "longitude": "a longitude such as 122°20.107'W",
+}
+
+
+def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
+    """Split ``text`` into coordinates; also return the indexes after which a comma stood."""
+    if not isinstance(text, str):
+        raise PositionError(f"a {what} must be text, not {text!r}")
+    if not text.strip():
+        raise PositionError(f"{what} text {text!r} is empty; expected {_EXAMPLES[what]}")
+
+    def _fail(text: str, why: str) -> PositionError:  # noqa: F811 - names the thing read
+        return PositionError(f"cannot read {what} {text!r}: {why}")
+
+    coords: list[_Coord] = []
+    commas: list[int] = []
+    cur = _Coord()
+    toks = list(_tokens(text))
+
+    def close() -> None:
+        nonlocal cur
+        if cur.parts:
+            coords.append(cur)
+        elif cur.lead_hemi or cur.sign:
+            what = f"hemisphere {cur.lead_hemi!r}" if cur.lead_hemi else f"sign {cur.sign!r}"
+            raise _fail(text, f"{what} is not followed by a number")
+        cur = _Coord()
+
+    # "47d36.512" or "47deg 36.512": a degree sign spelt with letters right after a number
+    for k in range(1, len(toks)):
+        kind, value, spaced = toks[k]
+        if (kind == "word" and value.lower() in ("d", "deg") and not spaced
+                and toks[k - 1][0] == "number"):
+            toks[k] = ("deg", value, spaced)
+
+    for kind, value, _ in toks:
+        if kind == "word" and value.lower() in ("nan", "inf", "infinity"):
+            raise _fail(text, f"{value!r} is not a finite number")
+
+    i = 0
+    while i < len(toks):
+        kind, value, spaced = toks[i]
+        nxt = toks[i + 1] if i + 1 < len(toks) else None
+        if kind == "number":
+            role = cur.next_role()
+            if nxt and nxt[0] in _ROLE_OF_SIGN:
+                # the sign after the number fixes its role
+                wanted = _ROLE_OF_SIGN[nxt[0]]
+                i += 1
+                if cur.parts:
+                    last_digits, last_role = cur.parts[-1]
+                    if wanted > last_role and "." in last_digits:
+                        raise _fail(text, f"only the last part of a coordinate may have a "
+                                          f"decimal fraction ({last_digits} is followed by "
+                                          f"{value}{nxt[1]})")
+                    if role is None or wanted < role:  # going back: the next coordinate
+                        close()
+                        role = 0
+                if wanted != role:
+                    if role == 0:
+                        raise _fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) has no "
+                                          "degrees before it")
+                    raise _fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) follows "
+                                      f"the {_ROLE_NAMES[role - 1]} directly")
+            elif role is None:
+                close()
+                role = 0
+            cur.parts.append((value, role))
+        elif kind in _ROLE_OF_SIGN:
+            raise _fail(text, f"{value!r} does not follow a number")
+        elif kind == "word":
+            word = value.lower()
+            if word in ("n", "s", "e", "w"):
+                hemi = word.upper()
+                if cur.parts and cur.lead_hemi is None:
+                    if cur.sign:
+                        raise _fail(text, f"a sign ({cur.sign}) and a hemisphere letter "
+                                          f"({hemi}) together; write one or the other")
+                    cur.trail_hemi = hemi
+                    close()
+                else:
+                    close()
+                    cur.lead_hemi = hemi
+            elif word in ("nan", "inf", "infinity"):
+                raise _fail(text, f"{value!r} is not a finite number")
+            else:
+                raise _fail(text, f"unexpected {value!r}; expected numbers, degree, minute "
+                                  "and second signs and hemisphere letters N S E W")
+        elif kind in ("minus", "plus"):
+            sign = "-" if kind == "minus" else "+"
+            if (kind == "minus" and not spaced and i > 0 and toks[i - 1][0] == "number"
+                    and nxt and nxt[0] == "number" and not nxt[2]):
+                # "47-36.512N": a dash between whole degrees and the minutes
+                last_digits, last_role = cur.parts[-1]
+                if last_role != 0 or "." in last_digits:
+                    raise _fail(text, f"a dash may only stand between whole degrees and "
+                                      f"minutes, not after {last_digits}")
+            else:
+                if cur.lead_hemi and not cur.parts:
+                    raise _fail(text, f"a sign ({sign}) and a hemisphere letter "
+                                      f"({cur.lead_hemi}) together; write one or the other")
+                close()
+                if not nxt or nxt[0] != "number" or nxt[2]:
+                    raise _fail(text, f"sign {value!r} is not followed by a number")
+                cur.sign = sign
+        elif kind == "comma":
+            close()
+            commas.append(len(coords))
+        else:
+            raise _fail(text, f"unexpected {value!r}; expected numbers, degree, minute and "
+                              "second signs and hemisphere letters N S E W")
+        i += 1
+    close()
+    return coords, commas
+
+
+def _value(text: str, c: _Coord, axis: str, what: str) -> float:
+    """The signed value in degrees of one coordinate, checked; ``axis`` is lat or lon."""
+
+    def _fail(text: str, why: str) -> PositionError:  # noqa: F811 - names the thing read
+        return PositionError(f"cannot read {what} {text!r}: {why}")
+    hemi = c.hemi
+    if c.sign and hemi:
+        raise _fail(text, f"a sign ({c.sign}) and a hemisphere letter ({hemi}) together; "
+                          "write one or the other")
+    if hemi:
+        found = "lat" if hemi in "NS" else "lon"
+        if found != axis:
+            if axis == "lat":
+                raise _fail(text, f"a longitude ({hemi}) where a latitude (N or S) is expected")
+            raise _fail(text, f"a latitude ({hemi}) where a longitude (E or W) is expected")
+    nums = [float(d) for d, _ in c.parts]
+    roles = [r for _, r in c.parts]
+    if roles != list(range(len(roles))):
+        raise _fail(text, "degrees, minutes and seconds must come in that order")
+    for (digits, role), num in zip(c.parts, nums):
+        if role > 0 and num >= 60.0:
+            raise _fail(text, f"{_ROLE_NAMES[role]} {digits} must be below 60")
+    if len(nums) == 1:
+        deg = nums[0]
+    elif len(nums) == 2:
+        deg = nums[0] + nums[1] / 60.0
+    else:
+        deg = nums[0] + (nums[1] * 60.0 + nums[2]) / 3600.0
+    negative = c.sign == "-" or hemi in ("S", "W")
+    limit = 90.0 if axis == "lat" else 180.0
+    name = "latitude" if axis == "lat" else "longitude"
+    if not deg <= limit:  # also a string of digits too long for a float (inf)
+        shown = f" {deg:.10g}°" if math.isfinite(deg) else ""
+        raise _fail(text, f"{name}{shown} is out of range; it must be at most {limit:g}°")
+    value = -deg if negative else deg
+    if axis == "lon":
+        value = _fold_lon(value)
+    return value + 0.0
+
+
+def _fold_lon(lon: float) -> float:
+    lon = math.fmod(lon, 360.0)
+    if lon >= 180.0:
+        lon -= 360.0
+    elif lon < -180.0:
+        lon += 360.0
+    return lon + 0.0
+
+
+def _single(text: str, axis: str) -> float:
+    name = "latitude" if axis == "lat" else "longitude"
+    coords, commas = _read_coords(text, name)
+    if commas:
+        raise _fail(text, f"a comma in a single {name}", name)
+    if len(coords) != 1:
+        raise _fail(text, f"expected one {name}, found {len(coords)} coordinates", name)
+    return _value(text, coords[0], axis, name)
+
+
+def parse_lat(text: str) -> float:
+    """A latitude in degrees, north positive, from any usual notation (see the module)."""
+    return _single(text, "lat")
+
+
+def parse_lon(text: str) -> float:
+    """A longitude in degrees, east positive, folded into [-180, 180)."""
+    return _single(text, "lon")
+
+
+def parse_position(text: str) -> tuple[float, float]:
+    """``(lat, lon)`` in degrees from a position written latitude first in any usual notation.
+
+    Raises :class:`~passagelog.errors.PositionError` quoting the text and saying what was
+    expected.
+    """
+    coords, commas = _read_coords(text, "position")
+    if isinstance(text, str):
+        toks = list(_tokens(text))
+        if len(toks) in (2, 4, 6) and all(kind == "number" for kind, _, _ in toks):
+            # bare numbers only ("47 122", "47 36.5 122 20.1"): half for each coordinate
+            half = len(toks) // 2
+            coords = [_Coord(parts=[(v, r) for r, (_, v, _) in enumerate(toks[:half])]),
+                      _Coord(parts=[(v, r) for r, (_, v, _) in enumerate(toks[half:])])]
+            for c in coords:
+                for digits, _ in c.parts[:-1]:
+                    if "." in digits:
+                        raise _fail(text, f"only the last part of a coordinate may have a "
+                                          f"decimal fraction ({digits} is followed by more)")
+    if len(coords) != 2:
+        raise _fail(text, f"expected a latitude and a longitude, found {len(coords)} "
+                          "coordinate" + ("" if len(coords) == 1 else "s"))
+    if commas not in ([], [1]):
+        raise _fail(text, "a comma may only stand between the latitude and the longitude")
+    first, second = coords
+    if first.hemi in ("E", "W") and second.hemi in ("N", "S"):
+        raise _fail(text, "the latitude (N or S) must come first")
+    return _value(text, first, "lat", "position"), _value(text, second, "lon", "position")
+
+
+# ---------------------------------------------------------------------------------------------
+# printing
+
+
+def _check_style(style: str, decimals: int) -> None:
+    if style not in STYLES:
+        raise PositionError(f"position style {style!r} is not known; use one of "
+                            + ", ".join(STYLES))
+    if isinstance(decimals, bool) or not isinstance(decimals, int) or not 0 <= decimals <= 12:
+        raise PositionError(f"position decimals {decimals!r} must be a whole number 0 to 12")
+
+
+def _format(value: float, axis: str, style: str, decimals: int, ascii: bool) -> str:
+    _check_style(style, decimals)
+    name = "latitude" if axis == "lat" else "longitude"
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not math.isfinite(value):
+        raise PositionError(f"{name} {value!r} is not a finite number of degrees")
+    if axis == "lat":
+        if not -90.0 <= value <= 90.0:
+            raise PositionError(f"latitude {value!r} is out of range; it must be in [-90, 90]")
+    else:
+        value = _fold_lon(float(value))
+    if style == "decimal":
+        out = f"{value:.{decimals}f}"
+        if float(out) == 0.0:
+            out = out.lstrip("-")
+        return out
+    scale = 10 ** decimals
+    per_degree = (60 if style == "dm" else 3600) * scale
+    total = round(abs(value) * per_degree)  # whole units of the last printed digit
+    deg, rest = divmod(total, per_degree)
+    width = 2 if axis == "lat" else 3
+    if total == 0:
+        hemi = "N" if axis == "lat" else "E"
+    elif axis == "lat":
+        hemi = "S" if value < 0 else "N"
+    else:
+        hemi = "W" if value < 0 else "E"
+
+    def fixed(units: int) -> str:  # units of 1/scale, printed as 2 digits + decimals
+        whole, frac = divmod(units, scale)
+        return f"{whole:02d}" + (f".{frac:0{decimals}d}" if decimals else "")
+
+    if style == "dm":
+        mins = fixed(rest)
+        if ascii:
+            return f"{deg:0{width}d} {mins}{hemi}"
+        return f"{deg:0{width}d}°{mins}'{hemi}"
+    mins, secs = divmod(rest, 60 * scale)
+    secs_text = fixed(secs)
+    if ascii:
+        return f"{deg:0{width}d} {mins:02d} {secs_text}{hemi}"
+    return f"{deg:0{width}d}°{mins:02d}'{secs_text}\"{hemi}"
+
+
+def format_lat(lat: float, style: str = "dm", decimals: int = 3, ascii: bool = False) -> str:
+    """A latitude as ``47°36.512'N`` (``dm``), ``47°36'30.720"N`` (``dms``) or ``47.609``
+    (``decimal``, signed); ``decimals`` applies to the last component; ``ascii`` prints
+    ``47 36.512N``."""
+    return _format(lat, "lat", style, decimals, ascii)
+
+
+def format_lon(lon: float, style: str = "dm", decimals: int = 3, ascii: bool = False) -> str:
+    """A longitude as ``122°20.107'W`` (three-digit degrees), folded into [-180, 180)."""
+    return _format(lon, "lon", style, decimals, ascii)
+
+
+def format_position(lat: float, lon: float, style: str = "dm", decimals: int = 3,
+                    ascii: bool = False) -> str:
+    """A position: ``47°36.512'N 122°20.107'W``; decimal style ``47.609, -122.335``."""
+    sep = ", " if style == "decimal" else " "
+    return format_lat(lat, style, decimals, ascii) + sep + format_lon(lon, style, decimals,
+                                                                      ascii)
