@@ -1,0 +1,144 @@
+"""The passagelog terminal app: four views over one logbook, help, palette, light and dark."""
+
+from __future__ import annotations
+
+from datetime import datetime
+from pathlib import Path
+from typing import Callable, Iterable
+
+from textual.app import App, ComposeResult, SystemCommand
+from textual.binding import Binding
+from textual.screen import Screen
+from textual.widgets import Footer, Header, TabbedContent, TabPane
+
+from passagelog.tui.session import Session, system_clock
+
+VIEWS = (
+    ("plan", "Plan", "f2"),
+    ("log", "Log", "f3"),
+    ("watch", "Watch", "f4"),
+    ("review", "Review", "f5"),
+)
+
+
+class PassagelogApp(App):
+    """Plan, Log, Watch and Review for the open voyage."""
+
+    CSS_PATH = "app.tcss"
+    TITLE = "passagelog"
+    ENABLE_COMMAND_PALETTE = True
+
+    BINDINGS = [
+        Binding("f1", "help", "Help"),
+        Binding("question_mark", "help", "Help", show=False),
+        Binding("f2", "view('plan')", "Plan", show=False),
+        Binding("f3", "view('log')", "Log", show=False),
+        Binding("f4", "view('watch')", "Watch", show=False),
+        Binding("f5", "view('review')", "Review", show=False),
+        Binding("f9", "toggle_dark", "Light/Dark", show=False),
+        Binding("ctrl+q", "quit", "Quit", priority=True, show=False),
+    ]
+
+    def __init__(self, db_path: str | Path | None = None, *, voyage: str | int | None = None,
+                 session: Session | None = None,
+                 clock: Callable[[], datetime] = system_clock,
+                 watch_poll_s: float = 0.5) -> None:
+        super().__init__()
+        self.session = session if session is not None else Session(db_path, voyage=voyage,
+                                                                    clock=clock)
+        self.watch_poll_s = watch_poll_s
+        self.theme = "textual-dark"
+
+    def compose(self) -> ComposeResult:
+        from passagelog.tui.plan_view import PlanView
+
+        yield Header(show_clock=False)
+        with TabbedContent(initial="plan", id="views"):
+            with TabPane("F2 Plan", id="plan"):
+                yield PlanView(self.session, id="plan-view")
+            for key, title, fkey in VIEWS[1:]:
+                with TabPane(f"{fkey.upper()} {title}", id=key):
+                    yield from self._view_widget(key)
+        yield Footer()
+
+    def _view_widget(self, key: str):
+        """The widget of a view (imported lazily; views not built yet show a note)."""
+        from textual.widgets import Static
+
+        try:
+            if key == "log":
+                from passagelog.tui.log_view import LogView as View
+            elif key == "watch":
+                from passagelog.tui.watch_view import WatchView as View
+            else:
+                from passagelog.tui.review_view import ReviewView as View
+        except ImportError:
+            yield Static(f"The {key} view is not available in this build.")
+            return
+        yield View(self.session, id=f"{key}-view")
+
+    def on_mount(self) -> None:
+        voyage = self.session.voyage
+        self.sub_title = (f"{voyage.name}  {self.session.db_path.name}" if voyage
+                          else f"no voyage  {self.session.db_path.name}")
+        self.call_after_refresh(self.action_view, "plan")
+
+    # --- actions ---
+    def action_help(self) -> None:
+        from passagelog.tui.help_screen import HelpScreen
+
+        if not isinstance(self.screen, HelpScreen):
+            self.push_screen(HelpScreen())
+
+    def action_view(self, key: str) -> None:
+        tabs = self.query_one("#views", TabbedContent)
+        tabs.active = key
+        pane = tabs.get_pane(key)
+        focusable = [w for w in pane.query("*") if w.focusable]
+        if focusable:
+            focusable[0].focus()
+
+    def action_toggle_dark(self) -> None:
+        self.theme = "textual-light" if self.theme == "textual-dark" else "textual-dark"
+
+    def _view_action(self, view: str, action: str) -> Callable[[], None]:
+        def run() -> None:
+            self.action_view(view)
+            widget = self.query_one(f"#{view}-view")
+            getattr(widget, f"action_{action}")()
+        return run
+
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        yield SystemCommand("Help", "Key bindings and the safety caution (F1)", self.action_help)
+        for key, title, fkey in VIEWS:
+            yield SystemCommand(f"Show {title}", f"Switch to the {title} view ({fkey.upper()})",
+                                lambda k=key: self.action_view(k))
+        yield SystemCommand("Light or dark", "Switch between the light and dark look (F9)",
+                            self.action_toggle_dark)
+        plan = (
+            ("Plan: edit waypoint", "edit", "Edit the selected waypoint and its leg (Enter)"),
+            ("Plan: insert waypoint", "insert", "Insert a waypoint after the selected one (Ins)"),
+            ("Plan: delete waypoint", "delete", "Delete the selected waypoint (Del)"),
+            ("Plan: move waypoint up", "move_up", "Move the selected waypoint up (Ctrl+Up)"),
+            ("Plan: move waypoint down", "move_down", "Move it down (Ctrl+Down)"),
+            ("Plan: reverse", "reverse", "Reverse the plan (Ctrl+R)"),
+            ("Plan: undo", "undo", "Undo the last edit (Ctrl+Z)"),
+            ("Plan: save revision", "save", "Save the edits as a new revision (Ctrl+S)"),
+        )
+        for title, action, help_text in plan:
+            yield SystemCommand(title, help_text, self._view_action("plan", action))
+        for view, commands in self.extra_commands().items():
+            for title, action, help_text in commands:
+                yield SystemCommand(title, help_text, self._view_action(view, action))
+        yield SystemCommand("Quit", "Leave passagelog (Ctrl+Q)", self.action_quit)
+
+    def extra_commands(self) -> dict[str, tuple[tuple[str, str, str], ...]]:
+        """Palette entries of the Log, Watch and Review views (as those views declare them)."""
+        out: dict[str, tuple[tuple[str, str, str], ...]] = {}
+        for key, _title, _f in VIEWS[1:]:
+            try:
+                widget = self.query_one(f"#{key}-view")
+            except Exception:  # noqa: BLE001 - a view not in this build
+                continue
+            out[key] = tuple(getattr(widget, "PALETTE", ()))
+        return out

@@ -1,0 +1,287 @@
+"""The working copy of a plan as the Plan view edits it, and its computed columns.
+
+No Textual here: this is plain logic, tested on its own. A :class:`PlanRow` holds one
+waypoint and the leg that ends at it (row 0 has no leg), as in the route CSV and in RTZ.
+Values are kept in the house units (metres, knots, degrees); the view converts to NM at the
+edge. :func:`compute` turns the rows into one :class:`RowFigures` per row.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field, replace
+from datetime import datetime, timedelta
+
+from passagelog.errors import InputError
+from passagelog.model import SAILINGS, LegPlan, Route, Waypoint
+from passagelog.nav.units import NM_M, travel_seconds
+
+
+@dataclass
+class PlanRow:
+    """One waypoint and the leg that ends at it (row 0's leg fields are unused)."""
+
+    name: str
+    lat: float
+    lon: float
+    sailing: str = "rhumb"
+    speed_kn: float | None = None
+    xtl_port_m: float | None = None
+    xtl_stbd_m: float | None = None
+    turn_radius_m: float | None = None
+    arrival_radius_m: float | None = None
+    notes: str = ""
+    # kept so a round trip through the editor loses nothing the table does not show
+    waypoint_extras: dict = field(default_factory=dict)
+    leg_extras: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class RowFigures:
+    """What the Plan view computes for one row (the leg ending at this waypoint)."""
+
+    distance_m: float | None = None          # by the leg's own sailing
+    gc_distance_m: float | None = None       # great circle (geodesic)
+    rhumb_distance_m: float | None = None    # rhumb line
+    initial_course: float | None = None
+    final_course: float | None = None
+    cumulative_m: float = 0.0
+    leg_time_s: float | None = None
+    eta_utc: datetime | None = None
+    alteration_deg: float | None = None      # course alteration at this waypoint (+ starboard)
+    wheel_over_m: float | None = None        # wheel-over distance before this waypoint
+    problem: str = ""
+
+
+def rows_from_route(route: Route) -> list[PlanRow]:
+    rows: list[PlanRow] = []
+    for i, wp in enumerate(route.waypoints):
+        leg = route.legs[i - 1] if i > 0 else LegPlan()
+        rows.append(PlanRow(
+            name=wp.name, lat=wp.lat, lon=wp.lon, sailing=leg.sailing, speed_kn=leg.speed_kn,
+            xtl_port_m=leg.xtl_port_m, xtl_stbd_m=leg.xtl_stbd_m,
+            turn_radius_m=leg.turn_radius_m, arrival_radius_m=wp.arrival_radius_m,
+            notes=leg.notes,
+            waypoint_extras={"rtz_id": wp.rtz_id, "revision": wp.revision, "extras": wp.extras},
+            leg_extras={"speed_min_kn": leg.speed_min_kn, "speed_max_kn": leg.speed_max_kn,
+                        "extras": leg.extras},
+        ))
+    return rows
+
+
+def route_from_rows(name: str, rows: list[PlanRow], *, base: Route | None = None,
+                    note: str = "") -> Route:
+    """The rows as a model Route (validated by the model's own checks)."""
+    waypoints = []
+    legs = []
+    for i, row in enumerate(rows):
+        wx = row.waypoint_extras or {}
+        waypoints.append(Waypoint(
+            name=row.name, lat=row.lat, lon=row.lon, arrival_radius_m=row.arrival_radius_m,
+            rtz_id=wx.get("rtz_id"), revision=wx.get("revision"),
+            extras=tuple(wx.get("extras") or ()),
+        ))
+        if i > 0:
+            lx = row.leg_extras or {}
+            legs.append(LegPlan(
+                sailing=row.sailing, speed_kn=row.speed_kn, xtl_port_m=row.xtl_port_m,
+                xtl_stbd_m=row.xtl_stbd_m, turn_radius_m=row.turn_radius_m, notes=row.notes,
+                speed_min_kn=lx.get("speed_min_kn"), speed_max_kn=lx.get("speed_max_kn"),
+                extras=tuple(lx.get("extras") or ()),
+            ))
+    schedule = base.schedule if base is not None and len(base.waypoints) == len(rows) else ()
+    return Route(name=name, waypoints=tuple(waypoints), legs=tuple(legs),
+                 schedule=schedule, note=note,
+                 extras=base.extras if base is not None else ())
+
+
+# --- editing operations (each returns a new list; the caller keeps the undo history) ---
+
+def insert_after(rows: list[PlanRow], index: int) -> list[PlanRow]:
+    """A new waypoint after row ``index``: halfway along the next leg, or a copy of the last
+    leg's step beyond the end. Its leg takes the settings of the leg it splits."""
+    out = list(rows)
+    here = rows[index]
+    if index + 1 < len(rows):
+        nxt = rows[index + 1]
+        lat, lon = _midpoint(here, nxt)
+        template = nxt
+    elif index > 0:
+        prev = rows[index - 1]
+        lat = max(-89.9, min(89.9, here.lat + (here.lat - prev.lat)))
+        lon = _fold(here.lon + (here.lon - prev.lon))
+        template = here
+    else:
+        lat, lon, template = max(-89.9, min(89.9, here.lat + 0.1)), here.lon, here
+    new = replace(template, name=_new_name(rows), lat=lat, lon=lon,
+                  waypoint_extras={}, leg_extras=dict(template.leg_extras))
+    out.insert(index + 1, new)
+    return out
+
+
+def delete(rows: list[PlanRow], index: int) -> list[PlanRow]:
+    if len(rows) <= 2:
+        raise InputError(f"a plan needs at least 2 waypoints; cannot delete {rows[index].name!r}")
+    out = list(rows)
+    del out[index]
+    return out
+
+
+def move(rows: list[PlanRow], index: int, step: int) -> list[PlanRow]:
+    """Swap a waypoint with its neighbour; leg settings stay with the row's position in the
+    sequence (the leg into slot k keeps its sailing, speed and limits)."""
+    j = index + step
+    if not 0 <= j < len(rows):
+        return list(rows)
+    out = list(rows)
+    a, b = out[index], out[j]
+    out[index] = replace(a, name=b.name, lat=b.lat, lon=b.lon,
+                         arrival_radius_m=b.arrival_radius_m, waypoint_extras=b.waypoint_extras)
+    out[j] = replace(b, name=a.name, lat=a.lat, lon=a.lon,
+                     arrival_radius_m=a.arrival_radius_m, waypoint_extras=a.waypoint_extras)
+    return out
+
+
+def reverse(rows: list[PlanRow]) -> list[PlanRow]:
+    """The plan sailed the other way: waypoints in reverse order; each leg keeps its settings
+    (sailing, speed, limits swapped port <-> starboard since the direction of travel flips)."""
+    n = len(rows)
+    out = []
+    for i in range(n):
+        wp = rows[n - 1 - i]
+        # the leg into new slot i is old leg from wp(n-1-i) to wp(n-i), described on row n-i
+        src = rows[n - i] if i > 0 else rows[0]
+        out.append(replace(
+            src, name=wp.name, lat=wp.lat, lon=wp.lon, arrival_radius_m=wp.arrival_radius_m,
+            waypoint_extras=wp.waypoint_extras,
+            xtl_port_m=src.xtl_stbd_m if i > 0 else None,
+            xtl_stbd_m=src.xtl_port_m if i > 0 else None,
+            turn_radius_m=(rows[n - 1 - i].turn_radius_m if 0 < i else None),
+        ))
+    return out
+
+
+def _midpoint(a: PlanRow, b: PlanRow) -> tuple[float, float]:
+    from passagelog.nav.geodesic import direct, inverse
+
+    s12, azi1, _ = inverse(a.lat, a.lon, b.lat, b.lon)
+    lat, lon, _ = direct(a.lat, a.lon, azi1, s12 / 2.0)
+    return round(lat, 6), _fold(round(lon, 6))
+
+
+def _fold(lon: float) -> float:
+    return (lon + 180.0) % 360.0 - 180.0
+
+
+def _new_name(rows: list[PlanRow]) -> str:
+    names = {r.name for r in rows}
+    k = len(rows) + 1
+    while f"WP{k}" in names:
+        k += 1
+    return f"WP{k}"
+
+
+# --- computed columns ---
+
+def _solve(a: PlanRow, b: PlanRow, sailing: str):
+    """(distance_m, initial_course, final_course) for one sailing, by the nav layer."""
+    from passagelog.nav.legs import make_leg
+
+    leg = make_leg(a.lat, a.lon, b.lat, b.lon, sailing, "wgs84")
+    return leg.distance_m, leg.initial_course, leg.final_course
+
+
+def signed_alteration(course_in: float, course_out: float) -> float:
+    """Course alteration from ``course_in`` to ``course_out`` in (-180, 180], + to starboard."""
+    d = (course_out - course_in) % 360.0
+    return d - 360.0 if d > 180.0 else d
+
+
+def wheel_over_m(turn_radius_m: float, alteration_deg: float) -> float:
+    """Distance before the waypoint at which the turn starts, R tan(A/2), for a turn of radius
+    R tangent to both legs (the geometry of a circular arc inscribed in the angle between the
+    legs; reaction allowance not included; REFERENCE.md, IMO MSC.74(69) notes, from memory)."""
+    return turn_radius_m * math.tan(math.radians(abs(alteration_deg)) / 2.0)
+
+
+def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigures]:
+    """Computed columns for each row; a problem on one leg is reported on that row and the
+    sums go on without it."""
+    n = len(rows)
+    raw: list[dict] = [dict() for _ in range(n)]
+    for i in range(1, n):
+        a, b = rows[i - 1], rows[i]
+        try:
+            gc = _solve(a, b, "great-circle")
+            rl = _solve(a, b, "rhumb")
+        except Exception as exc:  # noqa: BLE001 - shown beside the row, never fatal
+            raw[i]["problem"] = str(exc)
+            continue
+        own = gc if b.sailing == "great-circle" else rl
+        raw[i].update(distance_m=own[0], gc_distance_m=gc[0], rhumb_distance_m=rl[0],
+                      initial_course=own[1], final_course=own[2])
+    out: list[RowFigures] = []
+    cum = 0.0
+    t = departure_utc
+    for i in range(n):
+        r = raw[i]
+        alteration = wo = None
+        if 0 < i < n - 1 and "final_course" in r and "initial_course" in raw[i + 1]:
+            alteration = signed_alteration(r["final_course"], raw[i + 1]["initial_course"])
+            radius = rows[i].turn_radius_m
+            if radius:
+                wo = wheel_over_m(radius, alteration)
+        leg_time = None
+        if "distance_m" in r:
+            cum += r["distance_m"]
+            speed = rows[i].speed_kn
+            if speed:
+                leg_time = travel_seconds(r["distance_m"], speed)
+        problem = r.get("problem", "")
+        if i > 0 and leg_time is None and t is not None:
+            t = None  # no speed on a leg: later ETAs are unknown
+            problem = problem or "no planned speed: later ETAs unknown"
+        elif leg_time is not None and t is not None:
+            t = t + timedelta(seconds=leg_time)
+        out.append(RowFigures(
+            distance_m=r.get("distance_m"), gc_distance_m=r.get("gc_distance_m"),
+            rhumb_distance_m=r.get("rhumb_distance_m"), initial_course=r.get("initial_course"),
+            final_course=r.get("final_course"), cumulative_m=cum, leg_time_s=leg_time,
+            eta_utc=t, alteration_deg=alteration, wheel_over_m=wo, problem=problem,
+        ))
+    return out
+
+
+# --- parsing of the editor's fields (NM and knots at the edge) ---
+
+def parse_optional_number(text: str, what: str, *, unit: str, low: float = 0.0,
+                          high: float | None = None) -> float | None:
+    """A number typed in a field, or None for an empty field."""
+    t = text.strip()
+    if not t:
+        return None
+    try:
+        v = float(t)
+    except ValueError:
+        raise InputError(f"{what} {text!r} is not a number ({unit})") from None
+    if not math.isfinite(v):
+        raise InputError(f"{what} {text!r} must be a finite number ({unit})")
+    if v < low:
+        raise InputError(f"{what} {v:g} {unit} is below {low:g}")
+    if high is not None and v > high:
+        raise InputError(f"{what} {v:g} {unit} is above {high:g}")
+    return v
+
+
+def parse_nm(text: str, what: str) -> float | None:
+    v = parse_optional_number(text, what, unit="NM", high=10_000.0)
+    return None if v is None else v * NM_M
+
+
+def parse_sailing(text: str) -> str:
+    t = text.strip().lower().replace(" ", "-")
+    aliases = {"gc": "great-circle", "great-circle": "great-circle", "rl": "rhumb",
+               "rhumb": "rhumb", "rhumb-line": "rhumb"}
+    if t not in aliases:
+        raise InputError(f"sailing {text!r} is not one of: {', '.join(SAILINGS)} (or GC, RL)")
+    return aliases[t]

@@ -1,0 +1,379 @@
+"""The Plan view: the voyage's waypoints and legs in a table, edited in place.
+
+The table shows every waypoint with the leg that ends at it and the figures computed from
+them (courses, distance by the leg's sailing and by both sailings, cumulative distance, time,
+ETA in UTC and ship's time, wheel-over distance). The editor under the table changes the
+selected row; the figures follow as you type. Ctrl+S saves the edits as a new revision after
+asking for a change note.
+"""
+
+from __future__ import annotations
+
+from textual import on, work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Grid, Vertical
+from textual.message import Message
+from textual.widgets import DataTable, Input, Label, Select, Static
+
+from passagelog.errors import PassagelogError
+from passagelog.nav.units import NM_M
+from passagelog.tui import plan_rows as pr
+from passagelog.tui import text as fmt
+
+COLUMNS = (
+    ("#", "n"), ("Waypoint", "name"), ("Position", "pos"), ("Sail", "sail"), ("Kn", "kn"),
+    ("XTL P/S", "xtl"), ("Turn", "turn"), ("Course", "course"), ("Dist", "dist"),
+    ("GC", "gc"), ("RL", "rl"), ("Cum", "cum"), ("Time", "time"), ("ETA UTC", "eta"),
+    ("ETA ship", "etz"), ("Alter", "alter"), ("WO", "wo"),
+)
+
+FIELDS = (
+    # id, label, placeholder
+    ("name", "Name", "WP name"),
+    ("pos", "Position", "47°36.5'N 122°20.1'W"),
+    ("speed", "Speed kn", ""),
+    ("xtl_port", "XTL port NM", ""),
+    ("xtl_stbd", "XTL stbd NM", ""),
+    ("turn", "Turn R NM", ""),
+    ("arrival", "Arrival R NM", ""),
+)
+
+SAILING_CHOICES = [("rhumb line", "rhumb"), ("great circle", "great-circle")]
+
+
+class PlanView(Vertical):
+    """Plan table and row editor."""
+
+    BINDINGS = [
+        Binding("enter", "edit", "Edit", show=False),
+        Binding("insert,plus", "insert", "Insert"),
+        Binding("delete", "delete", "Delete"),
+        Binding("ctrl+up", "move(-1)", "Move up", show=False),
+        Binding("ctrl+down", "move(1)", "Move down", show=False),
+        Binding("ctrl+r", "reverse", "Reverse"),
+        Binding("ctrl+z", "undo", "Undo", show=False),
+        Binding("ctrl+s", "save", "Save"),
+    ]
+
+    class Saved(Message):
+        """A new revision was stored."""
+
+        def __init__(self, revision: int | None) -> None:
+            super().__init__()
+            self.revision = revision
+
+    def __init__(self, session, **kwargs) -> None:
+        super().__init__(**kwargs)
+        self.session = session
+        self.rows: list[pr.PlanRow] = []
+        self.figures: list[pr.RowFigures] = []
+        self.history: list[list[pr.PlanRow]] = []
+        self.dirty = False
+        self._loading = False
+        self._editor_row = -1
+
+    def compose(self) -> ComposeResult:
+        yield Static("", id="plan-head", classes="view-head")
+        table = DataTable(id="plan-table", cursor_type="row", zebra_stripes=True)
+        yield table
+        with Grid(id="plan-editor"):
+            for fid, label, placeholder in FIELDS[:2]:
+                yield Label(label, classes="field-label")
+                yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
+            yield Label("Sailing", classes="field-label")
+            yield Select(SAILING_CHOICES, id="plan-sailing", allow_blank=False,
+                         value="rhumb", compact=True)
+            for fid, label, placeholder in FIELDS[2:]:
+                yield Label(label, classes="field-label")
+                yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
+        yield Static("", id="plan-message", classes="field-error")
+
+    def on_mount(self) -> None:
+        table = self.query_one("#plan-table", DataTable)
+        for label, key in COLUMNS:
+            table.add_column(label, key=key)
+        self.load()
+
+    # --- loading and drawing ---
+    def load(self) -> None:
+        route = self.session.route
+        self.rows = pr.rows_from_route(route) if route is not None else []
+        self.history.clear()
+        self.dirty = False
+        self.refresh_table()
+        self.fill_editor()
+
+    def refresh_table(self, keep_row: int | None = None) -> None:
+        table = self.query_one("#plan-table", DataTable)
+        row_now = table.cursor_row if keep_row is None else keep_row
+        voyage = self.session.voyage
+        departure = voyage.departure_utc if voyage else None
+        zd = self.session.zd_minutes
+        self.figures = pr.compute(self.rows, departure) if self.rows else []
+        table.clear()
+        for i, (row, fig) in enumerate(zip(self.rows, self.figures)):
+            leg = i > 0
+            xtl = (f"{fmt.nm_opt(row.xtl_port_m) or fmt.DASH}/"
+                   f"{fmt.nm_opt(row.xtl_stbd_m) or fmt.DASH}") if leg else ""
+            sail = ("GC" if row.sailing == "great-circle" else "RL") if leg else ""
+            table.add_row(
+                str(i + 1), row.name, fmt.position(row.lat, row.lon), sail,
+                fmt.num_opt(row.speed_kn) if leg else "", xtl,
+                fmt.nm_opt(row.turn_radius_m) if leg else "",
+                f"{fmt.course(fig.initial_course)}" if leg else "",
+                fmt.nm(fig.distance_m) if leg else "",
+                fmt.nm(fig.gc_distance_m) if leg else "",
+                fmt.nm(fig.rhumb_distance_m) if leg else "",
+                fmt.nm(fig.cumulative_m),
+                fmt.duration(fig.leg_time_s) if leg else "",
+                fmt.utc_time(fig.eta_utc), fmt.ship_time(fig.eta_utc, zd),
+                (f"{fig.alteration_deg:+.0f}°" if fig.alteration_deg is not None else ""),
+                fmt.nm(fig.wheel_over_m, 2) if fig.wheel_over_m is not None else "",
+                key=str(i),
+            )
+        if self.rows:
+            table.move_cursor(row=max(0, min(row_now, len(self.rows) - 1)))
+        self.update_head()
+
+    def update_head(self) -> None:
+        head = self.query_one("#plan-head", Static)
+        route = self.session.route
+        voyage = self.session.voyage
+        if voyage is None:
+            head.update("No voyage in this logbook yet. Make one with the command line "
+                        "(see 'passagelog --help'), or open the demo: 'passagelog demo'.")
+            return
+        if route is None and not self.rows:
+            head.update(f"Voyage {voyage.name}: no plan yet.")
+            return
+        total = self.figures[-1].cumulative_m if self.figures else 0.0
+        gc = sum(f.gc_distance_m or 0.0 for f in self.figures)
+        rl = sum(f.rhumb_distance_m or 0.0 for f in self.figures)
+        rev = route.revision if route is not None and route.revision is not None else "–"
+        state = "  [b]edited, not saved (Ctrl+S)[/b]" if self.dirty else ""
+        head.update(
+            f"[b]{route.name if route else 'plan'}[/b] rev {rev}  {len(self.rows)} WP  "
+            f"{total / NM_M:.1f} NM as planned (all GC {gc / NM_M:.1f}, all RL {rl / NM_M:.1f})  "
+            f"dep {fmt.utc_time(voyage.departure_utc)}  ZD {fmt.zd_text(voyage.zd_minutes)}"
+            f"{state}"
+        )
+
+    def selected(self) -> int:
+        return self.query_one("#plan-table", DataTable).cursor_row
+
+    def fill_editor(self, index: int | None = None) -> None:
+        """Put the selected row's values into the editor fields."""
+        if not self.rows:
+            return
+        i = self.selected() if index is None else index
+        i = max(0, min(i, len(self.rows) - 1))
+        row = self.rows[i]
+        self._editor_row = i
+        self._loading = True
+        try:
+            values = {
+                "name": row.name, "pos": fmt.position(row.lat, row.lon),
+                "speed": fmt.num_opt(row.speed_kn), "xtl_port": fmt.nm_opt(row.xtl_port_m),
+                "xtl_stbd": fmt.nm_opt(row.xtl_stbd_m), "turn": fmt.nm_opt(row.turn_radius_m),
+                "arrival": fmt.nm_opt(row.arrival_radius_m),
+            }
+            for fid, value in values.items():
+                field = self.query_one(f"#plan-{fid}", Input)
+                field.value = value
+                field.remove_class("-bad")
+            self.query_one("#plan-sailing", Select).value = row.sailing
+            leg_fields = ("speed", "xtl_port", "xtl_stbd", "turn")
+            for fid in leg_fields:
+                self.query_one(f"#plan-{fid}", Input).disabled = i == 0
+            self.query_one("#plan-sailing", Select).disabled = i == 0
+            self.query_one("#plan-message", Static).update(
+                "Row 1 is the departure point: leg settings start at row 2."
+                if i == 0 else f"Editing row {i + 1}: {row.name} and the leg ending at it.")
+        finally:
+            self.call_after_refresh(self._done_loading)
+
+    def _done_loading(self) -> None:
+        self._loading = False
+
+    # --- editing ---
+    def _remember(self) -> None:
+        self.history.append([pr.PlanRow(**vars(r)) for r in self.rows])
+        del self.history[:-50]
+
+    def _changed(self, rows: list[pr.PlanRow], cursor: int) -> None:
+        self._remember()
+        self.rows = rows
+        self.dirty = True
+        self.refresh_table(keep_row=cursor)
+        self.fill_editor(cursor)
+
+    @on(DataTable.RowHighlighted, "#plan-table")
+    def _row_moved(self, event: DataTable.RowHighlighted) -> None:
+        if self.selected() != self._editor_row:
+            self.fill_editor()
+
+    @on(DataTable.RowSelected, "#plan-table")
+    def _row_chosen(self) -> None:
+        self.action_edit()
+
+    @on(Input.Changed)
+    @on(Select.Changed)
+    def _field_changed(self, event) -> None:
+        if self._loading or not self.rows or event.control.id is None:
+            return
+        if not event.control.id.startswith("plan-"):
+            return
+        self.apply_editor()
+
+    def apply_editor(self) -> bool:
+        """Read the editor into the selected row; True when every field is valid."""
+        i = self._editor_row if 0 <= self._editor_row < len(self.rows) else self.selected()
+        row = self.rows[i]
+        new = pr.PlanRow(**vars(row))
+        errors: list[str] = []
+
+        def take(fid: str, parse):
+            field = self.query_one(f"#plan-{fid}", Input)
+            try:
+                value = parse(field.value)
+            except PassagelogError as exc:
+                field.add_class("-bad")
+                errors.append(str(exc))
+                return None, False
+            field.remove_class("-bad")
+            return value, True
+
+        name, ok = take("name", _parse_name)
+        if ok:
+            new.name = name
+        pos, ok = take("pos", fmt.parse_position)
+        if ok:
+            new.lat, new.lon = pos
+        if i > 0:
+            new.sailing = self.query_one("#plan-sailing", Select).value
+            for fid, attr, parse in (
+                ("speed", "speed_kn", lambda t: pr.parse_optional_number(
+                    t, "planned speed", unit="kn", high=1000.0)),
+                ("xtl_port", "xtl_port_m", lambda t: pr.parse_nm(t, "port cross-track limit")),
+                ("xtl_stbd", "xtl_stbd_m", lambda t: pr.parse_nm(t, "starboard cross-track limit")),
+                ("turn", "turn_radius_m", lambda t: pr.parse_nm(t, "turn radius")),
+            ):
+                value, ok = take(fid, parse)
+                if ok:
+                    setattr(new, attr, value)
+        value, ok = take("arrival", lambda t: pr.parse_nm(t, "arrival radius"))
+        if ok:
+            new.arrival_radius_m = value
+        message = self.query_one("#plan-message", Static)
+        if vars(new) != vars(row):
+            self._remember()
+            self.rows[i] = new
+            self.dirty = True
+            self.refresh_table(keep_row=i)
+        if errors:
+            message.update("[b]Not taken:[/b] " + "; ".join(errors))
+            message.add_class("-bad")
+        else:
+            message.update(f"Row {i + 1} ({new.name}) updated.")
+            message.remove_class("-bad")
+        return not errors
+
+    def action_edit(self) -> None:
+        if self.rows:
+            self.query_one("#plan-name", Input).focus()
+
+    def action_insert(self) -> None:
+        if self.rows:
+            i = self.selected()
+            self._changed(pr.insert_after(self.rows, i), i + 1)
+            self.notify(f"Inserted {self.rows[i + 1].name} after row {i + 1}; edit it below.")
+
+    def action_delete(self) -> None:
+        if not self.rows:
+            return
+        i = self.selected()
+        try:
+            rows = pr.delete(self.rows, i)
+        except PassagelogError as exc:
+            self.notify(str(exc), severity="error")
+            return
+        gone = self.rows[i].name
+        self._changed(rows, min(i, len(rows) - 1))
+        self.notify(f"Deleted {gone} (Ctrl+Z undoes).")
+
+    def action_move(self, step: int) -> None:
+        if self.rows:
+            i = self.selected()
+            j = max(0, min(len(self.rows) - 1, i + step))
+            if j != i:
+                self._changed(pr.move(self.rows, i, step), j)
+
+    def action_move_up(self) -> None:
+        self.action_move(-1)
+
+    def action_move_down(self) -> None:
+        self.action_move(1)
+
+    def action_reverse(self) -> None:
+        if self.rows:
+            self._changed(pr.reverse(self.rows), 0)
+            self.notify("Plan reversed (port and starboard limits swapped with the direction).")
+
+    def action_undo(self) -> None:
+        if self.history:
+            self.rows = self.history.pop()
+            self.dirty = True
+            self.refresh_table()
+            self.fill_editor()
+        else:
+            self.notify("Nothing to undo.")
+
+    def action_save(self) -> None:
+        from passagelog.tui.note_dialog import ChangeNoteDialog
+
+        if not self.rows or self.session.voyage is None:
+            self.notify("No plan to save.", severity="warning")
+            return
+        if not self.dirty:
+            self.notify("No changes to save.")
+            return
+        base = self.session.route
+        try:
+            route = pr.route_from_rows(base.name if base else self.session.voyage.name,
+                                       self.rows, base=base)
+        except PassagelogError as exc:
+            self.notify(str(exc), severity="error")
+            return
+        total = self.figures[-1].cumulative_m / NM_M if self.figures else 0.0
+        summary = f"{len(self.rows)} waypoints, {total:.1f} NM."
+
+        def done(note: str | None) -> None:
+            if note:
+                self._save(route, note)
+
+        self.app.push_screen(ChangeNoteDialog(summary), done)
+
+    @work(thread=True, exclusive=True, group="plan-save")
+    def _save(self, route, note: str) -> None:
+        try:
+            saved = self.session.save_revision(route, note)
+        except PassagelogError as exc:
+            self.app.call_from_thread(self.notify, str(exc), severity="error")
+            return
+        self.app.call_from_thread(self._saved, saved)
+
+    def _saved(self, route) -> None:
+        rev = route.revision if route is not None else None
+        self.load()
+        self.notify(f"Saved plan revision {rev}.")
+        self.post_message(self.Saved(rev))
+
+
+def _parse_name(text: str) -> str:
+    from passagelog.errors import InputError
+
+    name = text.strip()
+    if not name:
+        raise InputError("waypoint name must not be empty")
+    return name

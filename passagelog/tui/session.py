@@ -1,0 +1,128 @@
+"""The TUI's one door to the logbook: which voyage is open, its plan, fixes and entries.
+
+Every view goes through a :class:`Session`; it is the only TUI module that knows the store's
+API. SQLite connections belong to the thread that opened them, and the views read in worker
+threads, so each thread gets its own :class:`~passagelog.store.Logbook` on the same file.
+The clock is injectable so that tests and snapshots see a fixed "now".
+"""
+
+from __future__ import annotations
+
+import threading
+from datetime import datetime, timezone
+from pathlib import Path
+from typing import Callable
+
+from passagelog.model import Fix, LogEntry, Route, Voyage
+
+
+def system_clock() -> datetime:
+    return datetime.now(timezone.utc)
+
+
+class Session:
+    """An open logbook and the voyage the TUI is showing."""
+
+    def __init__(self, db_path: str | Path, *, voyage: str | int | None = None,
+                 clock: Callable[[], datetime] = system_clock):
+        self.db_path = Path(db_path)
+        self.clock = clock
+        self._local = threading.local()
+        self._lock = threading.Lock()
+        self.voyage: Voyage | None = None
+        self.route: Route | None = None
+        self.select_voyage(voyage)
+
+    # --- the logbook, per thread ---
+    @property
+    def logbook(self):
+        lb = getattr(self._local, "logbook", None)
+        if lb is None:
+            from passagelog.store import Logbook
+
+            lb = Logbook.open(self.db_path)
+            self._local.logbook = lb
+        return lb
+
+    def now(self) -> datetime:
+        return self.clock()
+
+    # --- voyages ---
+    def voyages(self) -> list[Voyage]:
+        return list(self.logbook.voyages())
+
+    def select_voyage(self, voyage: str | int | Voyage | None = None) -> Voyage | None:
+        """Open ``voyage`` (id, name or object); by default the most recent one."""
+        if isinstance(voyage, Voyage):
+            chosen = voyage
+        else:
+            all_v = self.voyages()
+            chosen = None
+            if voyage is None:
+                chosen = all_v[-1] if all_v else None
+            else:
+                for v in all_v:
+                    if v.voyage_id == voyage or v.name == voyage or str(v.voyage_id) == str(voyage):
+                        chosen = v
+                if chosen is None:
+                    from passagelog.errors import NotFoundError
+
+                    names = ", ".join(v.name for v in all_v) or "none"
+                    raise NotFoundError(f"voyage {voyage!r} is not in the logbook; it has: {names}")
+        self.voyage = chosen
+        self.reload_route()
+        return chosen
+
+    def reload_route(self) -> Route | None:
+        self.route = None
+        if self.voyage is not None and self.voyage.plan_id is not None:
+            self.route = self.logbook.route(self.voyage.plan_id)
+        return self.route
+
+    @property
+    def zd_minutes(self) -> int:
+        return self.voyage.zd_minutes if self.voyage else 0
+
+    # --- plan ---
+    def save_revision(self, route: Route, note: str) -> Route:
+        """Store ``route`` as a new revision of the voyage's plan with its change note."""
+        if self.voyage is None or self.voyage.plan_id is None:
+            from passagelog.errors import StoreError
+
+            raise StoreError("no voyage with a plan is open; create one with the CLI first")
+        self.logbook.save_revision(self.voyage.plan_id, route, note=note)
+        return self.reload_route()
+
+    # --- fixes ---
+    def _vid(self) -> int:
+        if self.voyage is None:
+            from passagelog.errors import StoreError
+
+            raise StoreError("no voyage is open")
+        return self.voyage.voyage_id
+
+    def add_fix(self, fix: Fix) -> Fix:
+        return self.logbook.add_fix(self._vid(), fix)
+
+    def correct_fix(self, fix_id: int, fix: Fix, reason: str) -> Fix:
+        return self.logbook.correct_fix(fix_id, fix, reason=reason)
+
+    def fixes(self) -> list[Fix]:
+        return list(self.logbook.fixes(self._vid())) if self.voyage else []
+
+    def fix_arrays(self):
+        return self.logbook.fix_arrays(self._vid())
+
+    def latest_fix(self) -> Fix | None:
+        return self.logbook.latest_fix(self._vid()) if self.voyage else None
+
+    def change_counter(self) -> int:
+        """A number that changes whenever the logbook does (cheap: polled by Watch)."""
+        return self.logbook.change_counter()
+
+    # --- log entries ---
+    def entries(self) -> list[LogEntry]:
+        return list(self.logbook.entries(self._vid())) if self.voyage else []
+
+    def add_entry(self, entry: LogEntry) -> LogEntry:
+        return self.logbook.add_entry(self._vid(), entry)

@@ -1,0 +1,104 @@
+"""The app shell and the Plan view driven by keyboard, as a user would (Textual Pilot)."""
+
+from __future__ import annotations
+
+from passagelog import CAUTION
+from passagelog.tui.app import PassagelogApp
+
+
+async def test_help_shows_bindings_and_the_caution(memory_session):
+    app = PassagelogApp(session=memory_session)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f1")
+        await pilot.pause()
+        from passagelog.tui.help_screen import HelpScreen
+
+        assert isinstance(app.screen, HelpScreen)
+        caution = str(app.screen.query_one("#help-caution").render())
+        assert CAUTION.split()[0] in caution and "not a certified" in caution
+        await pilot.press("escape")
+        assert not isinstance(app.screen, HelpScreen)
+
+
+async def test_palette_offers_every_plan_action(memory_session):
+    app = PassagelogApp(session=memory_session)
+    async with app.run_test(size=(100, 30)):
+        titles = {c.title for c in app.get_system_commands(app.screen)}
+    for wanted in ("Help", "Show Plan", "Show Watch", "Light or dark", "Plan: insert waypoint",
+                   "Plan: delete waypoint", "Plan: reverse", "Plan: save revision", "Quit"):
+        assert wanted in titles
+
+
+async def test_light_and_dark(memory_session):
+    app = PassagelogApp(session=memory_session)
+    async with app.run_test(size=(100, 30)) as pilot:
+        assert app.theme == "textual-dark"
+        await pilot.press("f9")
+        assert app.theme == "textual-light"
+
+
+async def test_insert_a_waypoint_edit_it_and_save_a_revision(memory_session):
+    app = PassagelogApp(session=memory_session)
+    async with app.run_test(size=(100, 30)) as pilot:
+        plan = app.query_one("#plan-view")
+        await pilot.pause()
+        assert app.focused is app.query_one("#plan-table")
+        await pilot.press("plus")  # insert after row 1
+        await pilot.pause()
+        assert len(plan.rows) == 5
+        await pilot.press("enter")  # edit: focus goes to the name field
+        await pilot.pause()
+        name = app.query_one("#plan-name")
+        assert app.focused is name
+        name.value = ""
+        await pilot.press(*"Lizard")
+        await pilot.press("tab")  # position field: type a position in another notation
+        pos = app.query_one("#plan-pos")
+        pos.value = ""
+        await pilot.press(*"49 45.5N 6 30W")
+        await pilot.pause()
+        assert plan.rows[1].name == "Lizard"
+        assert abs(plan.rows[1].lat - (49 + 45.5 / 60)) < 1e-12
+        assert abs(plan.rows[1].lon - (-6.5)) < 1e-12
+        # a bad speed is refused beside the field and leaves the row as it was
+        speed = app.query_one("#plan-speed")
+        speed.value = "fast"
+        await pilot.pause()
+        assert speed.has_class("-bad")
+        assert "planned speed 'fast' is not a number" in str(
+            app.query_one("#plan-message").render())
+        assert plan.rows[1].speed_kn == 12.0
+        speed.value = "9.5"
+        await pilot.pause()
+        assert plan.rows[1].speed_kn == 9.5
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        from passagelog.tui.note_dialog import ChangeNoteDialog
+
+        assert isinstance(app.screen, ChangeNoteDialog)
+        await pilot.press("enter")  # an empty note is refused
+        await pilot.pause()
+        assert isinstance(app.screen, ChangeNoteDialog)
+        await pilot.press(*"Lizard added for a landfall check", "enter")
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+    assert len(memory_session.revisions) == 1
+    route, note = memory_session.revisions[0]
+    assert note == "Lizard added for a landfall check"
+    assert [w.name for w in route.waypoints] == ["Start", "Lizard", "Ushant W", "Mid", "Ponta"]
+    assert route.legs[0].speed_kn == 9.5 and route.revision == 2
+
+
+async def test_delete_reverse_and_undo(memory_session):
+    app = PassagelogApp(session=memory_session)
+    async with app.run_test(size=(80, 24)) as pilot:
+        plan = app.query_one("#plan-view")
+        await pilot.pause()
+        await pilot.press("down", "delete")
+        assert [r.name for r in plan.rows] == ["Start", "Mid", "Ponta"]
+        await pilot.press("ctrl+r")
+        assert [r.name for r in plan.rows] == ["Ponta", "Mid", "Start"]
+        await pilot.press("ctrl+z", "ctrl+z")
+        assert [r.name for r in plan.rows] == ["Start", "Ushant W", "Mid", "Ponta"]
+        await pilot.press("ctrl+down")
+        assert [r.name for r in plan.rows][:2] == ["Ushant W", "Start"]
