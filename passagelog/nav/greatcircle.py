@@ -1,0 +1,564 @@
+"""Great-circle legs: geodesics on the WGS84 ellipsoid (or a sphere), with offsets.
+
+A :class:`GreatCircleLeg` is the shortest geodesic between two points, solved with
+geographiclib (Karney 2013, "Algorithms for geodesics", J. Geod. 87:43-55). On the sphere
+models it is a great circle in the strict sense; on the ellipsoid the trade's "great circle"
+is the geodesic, which is what is computed.
+
+Offsets (cross-track error and along-track distance) are measured to the foot of the shortest
+geodesic from the position to the leg's geodesic extended past its ends. The foot is where
+that shortest geodesic meets the line at a right angle: this is the *intercept* problem of
+Karney (2011), "Geodesics on an ellipsoid of revolution", arXiv:1102.1215, sec. 8. It is solved
+here by iterating on the foot's parameter along the line:
+
+1. a first foot from the auxiliary sphere (reduced latitude; the geodesic maps to a great
+   circle there), with the longitude lag of the geodesic applied to the position;
+2. from the current foot F, one inverse problem F -> P gives the distance ``d`` and the angle
+   ``theta`` between the line and the geodesic to P at F; the right spherical triangle gives
+   the move along the line ``ds = R atan2(sin(d/R) cos(theta), cos(d/R))`` (exact on a
+   sphere; on the ellipsoid each step shrinks the error by a factor of order f (d/R)^2);
+3. repeat on the positions that have not yet moved by less than :data:`FOOT_TOLERANCE_M`.
+
+The batch version (:meth:`GreatCircleLeg.offsets_np`) evaluates points of the line in numpy
+(the series of geographiclib's ``GeodesicLine``) and runs one vectorised pyproj inverse per
+iteration on the positions not yet converged; the scalar version (:meth:`GreatCircleLeg.offset`)
+runs the same algorithm with geographiclib's ``GeodesicLine.ArcPosition`` and ``Inverse``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from passagelog.errors import GeometryError, InputError
+from passagelog.nav.earth import WGS84, Earth, get_earth
+
+#: Iteration for the foot stops once the last move along the line is below this, metres.
+FOOT_TOLERANCE_M = 5e-5
+#: Iterations allowed for the foot before giving up with a GeometryError.
+FOOT_MAX_ITERATIONS = 40
+#: A leg shorter than this has no defined course, metres.
+MIN_LEG_M = 1e-6
+#: A position closer than this (radians on the auxiliary sphere) to the pole of the leg's
+#: great circle has no defined foot: every point of the line is (nearly) equally far.
+POLE_TOLERANCE_RAD = 1e-9
+
+
+def _course(azi: float) -> float:
+    c = azi % 360.0
+    return 0.0 if c >= 360.0 else c + 0.0
+
+
+def _lon(lon: float) -> float:
+    x = (lon + 180.0) % 360.0 - 180.0
+    return 0.0 if x == 0.0 else (-180.0 if x >= 180.0 else x)
+
+
+def _lon_np(lon):
+    x = np.mod(np.asarray(lon, dtype=np.float64) + 180.0, 360.0) - 180.0
+    x[x >= 180.0] -= 360.0
+    return x + 0.0
+
+
+def _course_np(azi):
+    c = np.mod(azi, 360.0)
+    c[c >= 360.0] = 0.0
+    return c + 0.0
+
+
+def _sincos_series_np(sinx, cosx, c):
+    """Clenshaw sum of ``c[k] sin(2 k x)``, k = 1..n (geographiclib's ``_SinCosSeries``)."""
+    k = len(c)
+    n = k - 1
+    ar = 2 * (cosx - sinx) * (cosx + sinx)
+    y1 = np.zeros_like(sinx)
+    if n & 1:
+        k -= 1
+        y0 = np.full_like(sinx, c[k])
+    else:
+        y0 = np.zeros_like(sinx)
+    n //= 2
+    while n:
+        n -= 1
+        k -= 1
+        y1 = ar * y0 - y1 + c[k]
+        k -= 1
+        y0 = ar * y1 - y0 + c[k]
+    return 2 * sinx * cosx * y0
+
+
+def check_point(thing: str, lat: float, lon: float) -> float:
+    """Validate one position; returns the longitude folded into [-180, 180)."""
+    for name, value in (("latitude", lat), ("longitude", lon)):
+        if isinstance(value, bool) or not isinstance(value, (int, float, np.floating,
+                                                             np.integer)):
+            raise InputError(f"{thing} {name} must be a number, not {value!r}")
+        if not math.isfinite(value):
+            raise InputError(f"{thing} {name} is {value!r}; a finite number is required")
+    if not -90.0 <= lat <= 90.0:
+        raise InputError(f"{thing} latitude {lat!r} is out of range; allowed -90 to 90")
+    if not -540.0 <= lon <= 540.0:
+        raise InputError(f"{thing} longitude {lon!r} is out of range; allowed -180 to 180")
+    return _lon(float(lon))
+
+
+def check_points_np(thing: str, lats, lons):
+    """Validate a batch of positions; returns float64 arrays (lons folded)."""
+    lats, lons = np.broadcast_arrays(np.asarray(lats, dtype=np.float64),
+                                     np.asarray(lons, dtype=np.float64))
+    bad = ~(np.isfinite(lats) & np.isfinite(lons))
+    if bad.any():
+        i = int(np.flatnonzero(bad.ravel())[0])
+        raise InputError(
+            f"{thing} {i} is ({lats.ravel()[i]!r}, {lons.ravel()[i]!r}); finite latitude and "
+            "longitude are required")
+    bad = (np.abs(lats) > 90.0) | (np.abs(lons) > 540.0)
+    if bad.any():
+        i = int(np.flatnonzero(bad.ravel())[0])
+        raise InputError(
+            f"{thing} {i} is ({lats.ravel()[i]!r}, {lons.ravel()[i]!r}); latitude must be in "
+            "-90..90 and longitude in -180..180")
+    return lats, _lon_np(lons)
+
+
+class GreatCircleLeg:
+    """The shortest geodesic from (lat1, lon1) to (lat2, lon2) on ``earth``.
+
+    Attributes: ``lat1, lon1, lat2, lon2`` (degrees), ``earth``, ``distance_m``,
+    ``initial_course`` and ``final_course`` (degrees true, [0, 360)), ``sailing``
+    (``"great-circle"``). Raises GeometryError for a leg of zero length (no course).
+    """
+
+    sailing = "great-circle"
+
+    def __init__(self, lat1: float, lon1: float, lat2: float, lon2: float,
+                 earth: Earth | str = WGS84):
+        lon1 = check_point("leg start", lat1, lon1)
+        lon2 = check_point("leg end", lat2, lon2)
+        self.lat1, self.lon1, self.lat2, self.lon2 = float(lat1), lon1, float(lat2), lon2
+        self.earth = get_earth(earth)
+        from geographiclib.geodesic import Geodesic
+
+        g = self.earth.geodesic
+        self._geod = g
+        self._line = g.InverseLine(self.lat1, self.lon1, self.lat2, self.lon2,
+                                   Geodesic.ALL | Geodesic.LONG_UNROLL)
+        self.distance_m = float(self._line.s13)
+        if not self.distance_m > MIN_LEG_M:
+            raise GeometryError(
+                f"leg from ({self.lat1}, {self.lon1}) to ({self.lat2}, {self.lon2}) has zero "
+                "length; its course is not defined")
+        self.arc_deg = float(self._line.a13)
+        end = self._line.ArcPosition(self.arc_deg, Geodesic.STANDARD | Geodesic.LONG_UNROLL)
+        self.initial_course = _course(self._line.azi1)
+        self.final_course = _course(end["azi2"])
+        self._lon12_unrolled = end["lon2"] - self._line.lon1
+        ln = self._line
+        # Constants of the line, as geographiclib's GeodesicLine keeps them (Karney 2013,
+        # sec. 3-4): alpha0, sigma1, omega1, the series for distance and longitude.
+        self._salp0, self._calp0 = ln._salp0, ln._calp0
+        self._sig1 = math.atan2(ln._ssig1, ln._csig1)
+        self._omg1 = math.atan2(ln._somg1, ln._comg1)
+        self._E = 1.0 if self._salp0 >= 0 else -1.0
+        self._omg1E = math.atan2(self._E * ln._somg1, ln._comg1)
+        self._k2 = ln._k2
+        self._A1 = 1.0 + ln._A1m1
+        self._C1a = list(ln._C1a)
+        self._B11 = ln._B11
+        self._A3c = ln._A3c
+        self._C3a = list(ln._C3a)
+        self._B31 = ln._B31
+        self._b = ln._b
+        self._f1 = ln._f1
+        # Radius for the right-triangle step of the foot iteration (exact on a sphere).
+        e = self.earth
+        self._R = e.a if e.is_sphere else (2.0 * e.a + e.b) / 3.0
+
+    def __repr__(self) -> str:
+        return (f"GreatCircleLeg({self.lat1!r}, {self.lon1!r}, {self.lat2!r}, {self.lon2!r}, "
+                f"earth={self.earth.name!r})")
+
+    # ----------------------------------------------------------------- points on the line
+    def point_at(self, along_m: float) -> tuple[float, float]:
+        """Position ``along_m`` metres along the line from the start (negative: before it)."""
+        p = self._line.Position(float(along_m))
+        return p["lat2"], _lon(p["lon2"])
+
+    def course_at(self, along_m: float) -> float:
+        """Course (azimuth) of the line ``along_m`` metres from the start, degrees true."""
+        return _course(self._line.Position(float(along_m))["azi2"])
+
+    def points_at_np(self, along):
+        """Positions at the distances ``along`` (array, metres): ``(lats, lons)`` arrays."""
+        along = np.asarray(along, dtype=np.float64)
+        sig12 = self._sigma_of_s_np(along)
+        lat, lon, _, _, _ = self._at_sigma_np(sig12)
+        return lat, lon
+
+    def _at_sigma_np(self, sig12):
+        """Line at arc ``sig12`` (radians from the start): lat, lon, azi, s, dn (numpy)."""
+        sig = self._sig1 + sig12
+        ssig2, csig2 = np.sin(sig), np.cos(sig)
+        salp0, calp0 = self._salp0, self._calp0
+        sbet2 = calp0 * ssig2
+        cbet2 = np.hypot(salp0, calp0 * csig2)
+        lat = np.degrees(np.arctan2(sbet2, self._f1 * cbet2))
+        azi = np.degrees(np.arctan2(np.full_like(csig2, salp0), calp0 * csig2))
+        # unrolled longitude on the auxiliary sphere (geographiclib's LONG_UNROLL form)
+        E = self._E
+        omg12 = E * (sig12 - (np.arctan2(ssig2, csig2) - self._sig1)
+                     + (np.arctan2(E * salp0 * ssig2, csig2) - self._omg1E))
+        lam12 = omg12 + self._A3c * (sig12 + (_sincos_series_np(ssig2, csig2, self._C3a)
+                                              - self._B31))
+        lon = _lon_np(self.lon1 + np.degrees(lam12))
+        B12 = _sincos_series_np(ssig2, csig2, self._C1a)
+        s = self._b * self._A1 * (sig12 + (B12 - self._B11))
+        dn = np.sqrt(1.0 + self._k2 * ssig2 * ssig2)
+        return lat, lon, _course_np(azi), s, dn
+
+    def _sigma_of_s_np(self, s):
+        """Arc (radians from the start) at distance ``s`` along the line (Newton, numpy)."""
+        s = np.asarray(s, dtype=np.float64)
+        sig12 = s / (self._b * self._A1)
+        for _ in range(8):
+            sig = self._sig1 + sig12
+            ssig2, csig2 = np.sin(sig), np.cos(sig)
+            B12 = _sincos_series_np(ssig2, csig2, self._C1a)
+            serr = self._b * self._A1 * (sig12 + (B12 - self._B11)) - s
+            step = serr / (self._b * np.sqrt(1.0 + self._k2 * ssig2 * ssig2))
+            sig12 = sig12 - step
+            if np.all(np.abs(step) < 1e-15 * (1.0 + np.abs(sig12))):
+                break
+        return sig12
+
+    def points_every(self, step_m: float) -> list[tuple[float, float]]:
+        """Points along the leg every ``step_m`` metres from the start, both ends included."""
+        if not (math.isfinite(step_m) and step_m > 0.0):
+            raise InputError(f"track step {step_m!r} m must be a positive distance")
+        n = int(math.floor(self.distance_m / step_m * (1.0 + 1e-12)))
+        if n > 100_000:
+            raise InputError(
+                f"track step {step_m!r} m gives {n} points on a leg of {self.distance_m:.0f} m;"
+                " at most 100000 are allowed")
+        alongs = [k * step_m for k in range(n + 1)]
+        if self.distance_m - alongs[-1] > 1e-6:
+            alongs.append(self.distance_m)
+        else:
+            alongs[-1] = self.distance_m
+        pts = [self.point_at(s) for s in alongs[:-1]]
+        pts.append((self.lat2, self.lon2))
+        pts[0] = (self.lat1, self.lon1)
+        return pts
+
+    def points_at_meridians(self, step_deg: float = 5.0) -> list[tuple[float, float]]:
+        """Points where the leg crosses each meridian that is a multiple of ``step_deg``,
+        with both ends: the turning points of the chain of rhumb lines by which a great
+        circle is sailed in practice (commonly every 5 degrees of longitude)."""
+        if not (math.isfinite(step_deg) and 0.0 < step_deg <= 180.0):
+            raise InputError(f"meridian step {step_deg!r} degrees must be in (0, 180]")
+        lon12 = self._lon12_unrolled
+        pts = [(self.lat1, self.lon1)]
+        if abs(lon12) > 1e-12 and abs(self._salp0) > 1e-15:
+            sgn = 1.0 if lon12 > 0 else -1.0
+            start = self._line.lon1
+            end = start + lon12
+            lo, hi = (start, end) if sgn > 0 else (end, start)
+            k0 = math.floor(lo / step_deg) + 1
+            k1 = math.ceil(hi / step_deg) - 1
+            ks = range(k0, k1 + 1) if sgn > 0 else range(k1, k0 - 1, -1)
+            for k in ks:
+                target = k * step_deg
+                if not (lo + 1e-9 < target < hi - 1e-9):
+                    continue
+                sig = self._sigma_at_lon(target)
+                p = self._line.ArcPosition(math.degrees(sig))
+                pts.append((p["lat2"], _lon(target)))
+        pts.append((self.lat2, self.lon2))
+        return pts
+
+    def _lon_unrolled_at_sigma(self, sig12: float) -> float:
+        from geographiclib.geodesic import Geodesic
+
+        p = self._line.ArcPosition(math.degrees(sig12), Geodesic.LONGITUDE | Geodesic.LONG_UNROLL)
+        return p["lon2"]
+
+    def _sigma_at_lon(self, target: float) -> float:
+        """Arc from the start where the unrolled longitude equals ``target`` (bracketed
+        secant, Illinois variant; the longitude is monotone along a non-meridional leg)."""
+        a, b = 0.0, math.radians(self.arc_deg)
+        fa = self._lon_unrolled_at_sigma(a) - target
+        fb = self._lon_unrolled_at_sigma(b) - target
+        side = 0
+        x = a
+        for _ in range(200):
+            x = (a * fb - b * fa) / (fb - fa) if fb != fa else 0.5 * (a + b)
+            fx = self._lon_unrolled_at_sigma(x) - target
+            if abs(fx) < 1e-13 or abs(b - a) < 1e-15:
+                return x
+            if (fx > 0) == (fb > 0):
+                b, fb = x, fx
+                if side == -1:
+                    fa *= 0.5
+                side = -1
+            else:
+                a, fa = x, fx
+                if side == 1:
+                    fb *= 0.5
+                side = 1
+        return x
+
+    def vertex(self) -> tuple[float, float] | None:
+        """The vertex (point of highest latitude) of the geodesic if it lies on the leg,
+        else None (also None for a leg along the equator, which has no vertex)."""
+        if abs(self._calp0) < 1e-15:
+            return None
+        sig1 = self._sig1
+        sig_end = sig1 + math.radians(self.arc_deg)
+        # vertices are at sigma = pi/2 + k pi (measured from the northward equator crossing)
+        k = math.ceil((sig1 - math.pi / 2) / math.pi - 1e-15)
+        sig_v = math.pi / 2 + k * math.pi
+        tol = 1e-14
+        if sig1 - tol <= sig_v <= sig_end + tol:
+            p = self._line.ArcPosition(math.degrees(sig_v - sig1))
+            return p["lat2"], _lon(p["lon2"])
+        return None
+
+    # ---------------------------------------------------------------------------- offsets
+    def _first_foot(self, lats, lons):
+        """First foot (arc from start, radians) from the auxiliary sphere, numpy."""
+        f1 = self._f1
+        phi = np.radians(lats)
+        beta = np.arctan2(f1 * np.sin(phi), np.cos(phi))
+        cb, sb = np.cos(beta), np.sin(beta)
+        salp0, calp0 = self._salp0, self._calp0
+        half = 0.5 * math.radians(self.arc_deg)
+        dlon = np.radians(_lon_np(lons - self.lon1))
+        sig = np.full_like(phi, half)
+        for _ in range(2):
+            # longitude lag lambda - omega between the start and the current foot
+            ss, cs = np.sin(self._sig1 + sig), np.cos(self._sig1 + sig)
+            lag = self._A3c * (sig + (_sincos_series_np(ss, cs, self._C3a) - self._B31))
+            omg = self._omg1 + dlon - lag
+            px, py, pz = cb * np.cos(omg), cb * np.sin(omg), sb
+            u = px
+            v = salp0 * py + calp0 * pz
+            sig_abs = np.arctan2(v, u)
+            sig = half + np.mod(sig_abs - self._sig1 - half + np.pi, 2 * np.pi) - np.pi
+        return sig, np.hypot(u, v)
+
+    def _first_foot_scalar(self, lat, lon):
+        s, r = self._first_foot(np.array([lat], dtype=np.float64),
+                                np.array([lon], dtype=np.float64))
+        return float(s[0]), float(r[0])
+
+    def offsets_np(self, lats, lons):
+        """Cross-track and along-track distances of many positions: ``(xte_m, along_m)``
+        float64 arrays of the broadcast shape. XTE is + to the right of the direction of
+        travel. Raises InputError for a bad position, GeometryError where a foot is not
+        defined (a position at the pole of the leg's great circle) or does not converge."""
+        lats, lons = check_points_np("position", lats, lons)
+        shape = lats.shape
+        lat = lats.ravel()
+        lon = lons.ravel()
+        n = lat.size
+        xte = np.empty(n)
+        along = np.empty(n)
+        if n == 0:
+            return xte.reshape(shape), along.reshape(shape)
+        sig, r = self._first_foot(lat, lon)
+        at_pole = r < POLE_TOLERANCE_RAD
+        if at_pole.any():
+            i = int(np.flatnonzero(at_pole)[0])
+            raise GeometryError(self._pole_message(lat[i], lon[i], i))
+        from passagelog.nav.geodesic import inverse_np
+
+        R = self._R
+        todo = np.arange(n)
+        s_todo = sig
+        lat_t, lon_t = lat, lon
+        for _ in range(FOOT_MAX_ITERATIONS):
+            flat, flon, fazi, _, dn = self._at_sigma_np(s_todo)
+            d, azi_fp, _ = inverse_np(flat, flon, lat_t, lon_t, self.earth)
+            theta = np.radians(azi_fp - fazi)
+            dr = d / R
+            ds = R * np.arctan2(np.sin(dr) * np.cos(theta), np.cos(dr))
+            s_new = s_todo + ds / (self._b * dn)
+            done = np.abs(ds) < FOOT_TOLERANCE_M
+            if done.any():
+                idx = todo[done]
+                xte[idx] = R * np.arcsin(np.clip(np.sin(dr[done]) * np.sin(theta[done]),
+                                                 -1.0, 1.0))
+                along[idx] = self._s_of_sigma_np(s_new[done])
+            keep = ~done
+            if not keep.any():
+                return xte.reshape(shape), along.reshape(shape)
+            todo = todo[keep]
+            s_todo = s_new[keep]
+            lat_t, lon_t = lat_t[keep], lon_t[keep]
+        i = int(todo[0])
+        raise GeometryError(
+            f"position {i} ({lat[i]!r}, {lon[i]!r}): the foot on the great-circle leg "
+            f"{self._ends()} did not converge in {FOOT_MAX_ITERATIONS} iterations")
+
+    def _s_of_sigma_np(self, sig12):
+        sig = self._sig1 + sig12
+        B12 = _sincos_series_np(np.sin(sig), np.cos(sig), self._C1a)
+        return self._b * self._A1 * (sig12 + (B12 - self._B11))
+
+    def _ends(self) -> str:
+        return f"({self.lat1}, {self.lon1}) -> ({self.lat2}, {self.lon2})"
+
+    def _pole_message(self, lat, lon, i=None) -> str:
+        which = "position" if i is None else f"position {i}"
+        return (f"{which} ({lat!r}, {lon!r}) is at the pole of the great-circle leg "
+                f"{self._ends()}: every point of the line is equally far, so the cross-track "
+                "foot is not defined")
+
+    def offset(self, lat: float, lon: float) -> tuple[float, float]:
+        """Cross-track and along-track distance of one position: ``(xte_m, along_m)``.
+
+        The same algorithm as :meth:`offsets_np` with geographiclib's scalar
+        ``GeodesicLine.ArcPosition`` and ``Geodesic.Inverse``."""
+        lon = check_point("position", lat, lon)
+        lat = float(lat)
+        sig, r = self._first_foot_scalar(lat, lon)
+        if r < POLE_TOLERANCE_RAD:
+            raise GeometryError(self._pole_message(lat, lon))
+        from geographiclib.geodesic import Geodesic
+
+        line, g, R = self._line, self._geod, self._R
+        mask = Geodesic.LATITUDE | Geodesic.LONGITUDE | Geodesic.AZIMUTH
+        for _ in range(FOOT_MAX_ITERATIONS):
+            p = line.ArcPosition(math.degrees(sig), mask)
+            inv = g.Inverse(p["lat2"], p["lon2"], lat, lon,
+                            Geodesic.DISTANCE | Geodesic.AZIMUTH)
+            theta = math.radians(inv["azi1"] - p["azi2"])
+            dr = inv["s12"] / R
+            ds = R * math.atan2(math.sin(dr) * math.cos(theta), math.cos(dr))
+            ssig2 = math.sin(self._sig1 + sig)
+            sig += ds / (self._b * math.sqrt(1.0 + self._k2 * ssig2 * ssig2))
+            if abs(ds) < FOOT_TOLERANCE_M:
+                xte = R * math.asin(max(-1.0, min(1.0, math.sin(dr) * math.sin(theta))))
+                along = line.ArcPosition(math.degrees(sig), Geodesic.DISTANCE)["s12"]
+                return xte, along
+        raise GeometryError(
+            f"position ({lat!r}, {lon!r}): the foot on the great-circle leg {self._ends()} "
+            f"did not converge in {FOOT_MAX_ITERATIONS} iterations")
+
+
+# ------------------------------------------------------------------------ composite sailing
+@dataclass(frozen=True)
+class SailingPart:
+    """One part of a composite sailing: ``kind`` is ``"great-circle"`` or ``"parallel"``."""
+
+    kind: str
+    lat1: float
+    lon1: float
+    lat2: float
+    lon2: float
+    distance_m: float
+    initial_course: float
+    final_course: float
+
+
+@dataclass(frozen=True)
+class CompositeSailing:
+    """A composite sailing (or the plain great circle when no limit is reached).
+
+    ``composite`` is False when the great circle's vertex does not lie between the ends
+    beyond the limiting latitude; ``parts`` then holds the great circle alone."""
+
+    parts: tuple[SailingPart, ...]
+    distance_m: float
+    limit_lat: float
+    composite: bool
+
+
+def _vertex_from(geod, lat: float, lon: float, azi: float) -> tuple[float, float, float]:
+    """Follow the geodesic from (lat, lon) along ``azi`` to its next vertex:
+    ``(lat_v, lon_v, s_m)``."""
+    from geographiclib.geodesic import Geodesic
+
+    line = geod.Line(lat, lon, azi, Geodesic.ALL | Geodesic.LONG_UNROLL)
+    sig1 = math.atan2(line._ssig1, line._csig1)
+    k = math.ceil((sig1 - math.pi / 2) / math.pi - 1e-15)
+    sig_v = math.pi / 2 + k * math.pi
+    p = line.ArcPosition(math.degrees(sig_v - sig1))
+    return p["lat2"], p["lon2"], p["s12"]
+
+
+def composite(lat1: float, lon1: float, lat2: float, lon2: float, limit_lat: float,
+              earth: Earth | str = WGS84) -> CompositeSailing:
+    """Composite sailing from (lat1, lon1) to (lat2, lon2) not going beyond ``limit_lat``
+    (signed: positive north, negative south).
+
+    A great circle from departure tangent to the limiting parallel (its vertex on the
+    parallel), along the parallel, then a great circle tangent to the parallel to the
+    destination. Used only when the direct great circle's vertex lies between the ends and
+    beyond the limit; otherwise the direct great circle is returned alone. Raises
+    GeometryError when an end itself lies beyond the limit.
+    """
+    earth = get_earth(earth)
+    if isinstance(limit_lat, bool) or not isinstance(limit_lat, (int, float)) or not (
+            math.isfinite(limit_lat) and 0.0 < abs(limit_lat) < 90.0):
+        raise InputError(
+            f"limiting latitude {limit_lat!r} must be a latitude between 0 and 90 degrees "
+            "north or south (not 0)")
+    hemi = 1.0 if limit_lat > 0 else -1.0
+    L = abs(float(limit_lat))
+    gc = GreatCircleLeg(lat1, lon1, lat2, lon2, earth)
+    for name, lat in (("departure", gc.lat1), ("destination", gc.lat2)):
+        if hemi * lat > L:
+            raise GeometryError(
+                f"composite sailing: the {name} latitude {lat!r} lies beyond the limiting "
+                f"latitude {limit_lat!r}; both ends must be on the near side of the limit")
+    plain = CompositeSailing(
+        (SailingPart("great-circle", gc.lat1, gc.lon1, gc.lat2, gc.lon2, gc.distance_m,
+                     gc.initial_course, gc.final_course),),
+        gc.distance_m, float(limit_lat), False)
+    v = gc.vertex()
+    if v is None or hemi * v[0] <= L:
+        return plain
+    g = earth.geodesic
+    f1 = 1.0 - earth.f
+
+    def cbeta(lat):
+        phi = math.radians(lat)
+        return math.cos(math.atan2(f1 * math.sin(phi), math.cos(phi)))
+
+    east = 1.0 if math.sin(math.radians(gc.initial_course)) >= 0 else -1.0
+    cbl = cbeta(L)
+    # departure: sin(alpha1) cos(beta1) = sin(alpha0) = cos(beta_L) (Clairaut), heading
+    # poleward toward the vertex
+    sa = min(1.0, cbl / cbeta(gc.lat1))
+    a1 = math.degrees(math.asin(sa))
+    azi_a = east * (a1 if hemi > 0 else 180.0 - a1)
+    lat_v1, lon_v1, s1 = _vertex_from(g, gc.lat1, gc.lon1, azi_a)
+    # destination: the geodesic reached backward from it, heading poleward
+    sb = min(1.0, cbl / cbeta(gc.lat2))
+    b1 = math.degrees(math.asin(sb))
+    azi_b_back = -east * (b1 if hemi > 0 else 180.0 - b1)
+    lat_v2, lon_v2, s2 = _vertex_from(g, gc.lat2, gc.lon2, azi_b_back)
+    dlon = (east * (lon_v2 - lon_v1)) % 360.0
+    if dlon > 180.0:
+        # the two tangent circles overlap: the limit does not bite
+        return plain
+    # parallel of latitude L: radius a cos(beta) (ellipsoid of revolution)
+    s_par = earth.a * cbl * math.radians(dlon)
+    lat_v = hemi * L
+    ends_v1 = (_lon(lon_v1),)
+    parts = []
+    if s1 > 0:
+        parts.append(SailingPart("great-circle", gc.lat1, gc.lon1, lat_v, ends_v1[0], s1,
+                                 _course(azi_a), 90.0 if east > 0 else 270.0))
+    if s_par > 0:
+        parts.append(SailingPart("parallel", lat_v, _lon(lon_v1), lat_v, _lon(lon_v2), s_par,
+                                 90.0 if east > 0 else 270.0, 90.0 if east > 0 else 270.0))
+    if s2 > 0:
+        leg2 = GreatCircleLeg(lat_v, _lon(lon_v2), gc.lat2, gc.lon2, earth)
+        parts.append(SailingPart("great-circle", lat_v, _lon(lon_v2), gc.lat2, gc.lon2, s2,
+                                 90.0 if east > 0 else 270.0, leg2.final_course))
+    del lat_v1, lat_v2
+    return CompositeSailing(tuple(parts), s1 + s_par + s2, float(limit_lat), True)
