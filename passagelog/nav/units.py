@@ -86,7 +86,8 @@ def convert(value: float, from_unit: str, to_unit: str) -> float:
         raise InputError(f"cannot convert a {kinds[0]} ({from_unit}) to a {kinds[1]} "
                          f"({to_unit})")
     table = _EXACT_M if kinds[0] == "distance" else _EXACT_M_PER_H
-    return float(Fraction(value) * table[src] / table[dst])
+    result = float(Fraction(value) * table[src] / table[dst])
+    return math.copysign(result, value) if result == 0.0 else result  # keep the sign of 0
 
 
 def m_to_nm(metres: float) -> float:
