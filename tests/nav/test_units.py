@@ -132,3 +132,9 @@ def test_speed_round_trip(value, a, b):
     back = convert(convert(value, a, b), b, a)
     assert back == pytest.approx(value, rel=4e-16, abs=1e-300)
     assert math.copysign(1, back) == math.copysign(1, value) or value == 0
+
+
+def test_regression_underflow_keeps_sign():
+    """Hypothesis found -5e-324 km/h -> m/s coming back as +0.0 (Fraction has no -0)."""
+    assert math.copysign(1, convert(-5e-324, "km/h", "m/s")) == -1.0
+    assert math.copysign(1, convert(-0.0, "m", "nm")) == -1.0
