@@ -114,9 +114,10 @@ def test_common_protocol(sailing):
     assert lats[2] == pytest.approx(40.0, abs=1e-9) and lons[2] == pytest.approx(-30.0, abs=1e-9)
     xte, along = lg.offset(lat, lon)
     assert abs(xte) < 1e-3 and along == pytest.approx(0.5 * lg.distance_m, abs=1e-3)
-    xs, als = lg.offsets_np(np.array([lat, 45.0]), np.array([lon, -20.0]))
-    assert xs.shape == (2,) and abs(xs[0]) < 1e-3
-    assert xs[1] < 0 or sailing == "rhumb"  # 45N 20W lies left (north) of the great circle
+    xs, als = lg.offsets_np(np.array([lat, 55.0, 35.0]), np.array([lon, -20.0, -20.0]))
+    assert xs.shape == (3,) and abs(xs[0]) < 1e-3
+    # heading south-west: 55N 20W lies to starboard (north-west), 35N 20W to port
+    assert xs[1] > 0 and xs[2] < 0
 
 
 @needs_rhumb
