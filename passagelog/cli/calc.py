@@ -11,6 +11,10 @@ CALC_COMMANDS: dict[str, str] = {
     # legs and offsets (scripting contract: docs/cli.md)
     "leg": "calc_legs:leg",
     "offset": "calc_legs:offset",
+    # notations, units and zone time
+    "position": "calc_misc:position",
+    "convert": "calc_misc:convert",
+    "zone": "calc_misc:zone",
 }
 
 
