@@ -211,15 +211,18 @@ def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigu
     raw: list[dict] = [dict() for _ in range(n)]
     for i in range(1, n):
         a, b = rows[i - 1], rows[i]
-        try:
-            gc = _solve(a, b, "great-circle")
-            rl = _solve(a, b, "rhumb")
-        except Exception as exc:  # noqa: BLE001 - shown beside the row, never fatal
-            raw[i]["problem"] = str(exc)
-            continue
-        own = gc if b.sailing == "great-circle" else rl
-        raw[i].update(distance_m=own[0], gc_distance_m=gc[0], rhumb_distance_m=rl[0],
-                      initial_course=own[1], final_course=own[2])
+        solved = {}
+        for sailing in ("great-circle", "rhumb"):
+            try:
+                solved[sailing] = _solve(a, b, sailing)
+            except Exception as exc:  # noqa: BLE001 - shown beside the row, never fatal
+                if sailing == b.sailing:
+                    raw[i]["problem"] = f"{sailing}: {exc}"
+        gc, rl, own = solved.get("great-circle"), solved.get("rhumb"), solved.get(b.sailing)
+        raw[i].update(gc_distance_m=gc[0] if gc else None,
+                      rhumb_distance_m=rl[0] if rl else None)
+        if own is not None:
+            raw[i].update(distance_m=own[0], initial_course=own[1], final_course=own[2])
     out: list[RowFigures] = []
     cum = 0.0
     t = departure_utc

@@ -52,16 +52,9 @@ def duration(seconds: float | None) -> str:
 def zd_text(zd_minutes: int) -> str:
     """A zone description as the trade writes it: ``0``, ``-3``, ``+5``, ``-5:30``
     (ZT + ZD = UTC; REFERENCE.md, Zone time)."""
-    try:
-        from passagelog.nav.zonetime import format_zd
+    from passagelog.nav.zonetime import format_zd
 
-        return format_zd(zd_minutes)
-    except ImportError:  # the zone-time module has not landed in this build
-        if zd_minutes == 0:
-            return "0"
-        sign = "+" if zd_minutes > 0 else "-"
-        h, m = divmod(abs(zd_minutes), 60)
-        return f"{sign}{h}" + (f":{m:02d}" if m else "")
+    return format_zd(zd_minutes)
 
 
 def utc_time(t: datetime | None, *, date: bool = True) -> str:

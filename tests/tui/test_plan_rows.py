@@ -86,6 +86,19 @@ def test_move_swaps_waypoints_but_not_leg_settings():
     assert pr.move(rows, 0, -1) == rows
 
 
+def test_great_circle_figures_against_geographiclib():
+    from geographiclib.geodesic import Geodesic
+
+    rows = pr.rows_from_route(_route())
+    figs = pr.compute(rows, None)
+    # Karney (2013) via geographiclib, the outside reference for geodesics
+    g = Geodesic.WGS84.Inverse(45.0, -15.0, 40.0, -30.0)
+    assert figs[2].gc_distance_m == pytest.approx(g["s12"], abs=1e-3)
+    assert figs[2].initial_course == pytest.approx(g["azi1"] % 360, abs=1e-7)
+    assert figs[2].final_course == pytest.approx(g["azi2"] % 360, abs=1e-7)
+    assert figs[0].eta_utc is None and figs[0].distance_m is None
+
+
 def test_wheel_over_distance_is_r_tan_half_alteration():
     # A circular turn tangent to both legs starts R*tan(A/2) before the intersection
     # (elementary geometry of the inscribed circle); 90 deg at R = 1 NM -> 1 NM.
@@ -108,7 +121,7 @@ def test_field_parsers_name_the_field_and_the_allowed_range():
 
 
 def test_computed_columns_against_geographiclib():
-    pytest.importorskip("passagelog.nav.legs")
+    pytest.importorskip("passagelog.nav.rhumb")
     from geographiclib.geodesic import Geodesic
 
     rows = pr.rows_from_route(_route())
