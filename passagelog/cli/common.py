@@ -56,3 +56,39 @@ def open_tui(ctx: click.Context) -> None:
             "the terminal UI is not available in this build; see 'passagelog --help'"
         ) from exc
     run_app(db_path_from(ctx))
+
+
+TABLE_FORMATS = ("table", "csv", "json", "md")
+
+
+def emit_records(records: list[dict], columns: list[str], fmt: str, *, title: str = "",
+                 provenance=None, headers: dict[str, str] | None = None,
+                 stream=None) -> None:
+    """Print records as a terminal table (rich), CSV, JSON or Markdown.
+
+    CSV and JSON carry data only. The terminal table goes to stdout with the caution on
+    stderr; Markdown carries its caution and provenance inside.
+    """
+    from passagelog import CAUTION
+    from passagelog.report import render
+
+    out = stream or click.get_text_stream("stdout")
+    if fmt == "csv":
+        out.write(render.to_csv(records, columns))
+    elif fmt == "json":
+        out.write(render.to_json(records) + "\n")
+    elif fmt == "md":
+        out.write(render.to_markdown(records, columns, title=title, provenance=provenance))
+    elif fmt == "table":
+        from rich.console import Console
+        from rich.table import Table
+
+        table = Table(title=title or None, show_lines=False, header_style="bold")
+        for c in columns:
+            table.add_column((headers or {}).get(c, c), overflow="fold")
+        for rec in records:
+            table.add_row(*(render._cell(rec.get(c)) for c in columns))
+        Console(file=out, width=None if out.isatty() else 200).print(table)
+        click.echo(f"Caution: {CAUTION}", err=True)
+    else:
+        raise click.UsageError(f"format {fmt!r} is not one of: {', '.join(TABLE_FORMATS)}")
