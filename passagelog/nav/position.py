@@ -9,10 +9,12 @@ Accepted on input (case-insensitive hemisphere letters, any spacing)::
     47-36.512N                   a dash between degrees and minutes
     47.6085, -122.3351           signed decimal degrees, comma or space between
     47.6085N 122.3351W           decimal degrees with hemisphere letters
+    47 122                       bare numbers only: the first half latitude, the rest longitude
 
 Degree signs: ``°`` ``º`` ``˚`` ``d`` ``deg``; minute signs: ``'`` ``′`` ``’`` ``‘`` ``´`` `````;
 second signs: ``"`` ``″`` ``”`` ``“`` ``''`` ``′′``; minus: ``-`` ``−`` ``–``. Only the last
-component may carry a decimal fraction. Latitude is written first in a position. A sign and a
+component may carry a decimal fraction. A comma, semicolon or slash may stand between latitude
+and longitude. Latitude is written first in a position. A sign and a
 hemisphere letter never go together; minutes and seconds are below 60; |lat| <= 90 and
 |lon| <= 180 (longitudes are returned folded into [-180, 180), so 180°E reads as -180).
 
@@ -47,7 +49,7 @@ _TOKEN = re.compile(
   | (?P<deg>[""" + _DEG_SIGNS + r"""])
   | (?P<minus>[""" + _MINUS_SIGNS + r"""])
   | (?P<plus>\+)
-  | (?P<comma>[,;])
+  | (?P<comma>[,;/])
   | (?P<word>[^\W\d_]+)
   | (?P<other>.)
     """,

@@ -46,6 +46,8 @@ EXACT = 1e-12  # degrees; the parse is one correctly rounded division and an add
         "47°36.512'n 122°20.107'w",  # lower-case hemisphere letters
         "  47 36.512 N   122 20.107 W  ",  # spaces before the letters and around
         "47°36.512'N,122°20.107'W",
+        "47°36.512'N / 122°20.107'W",
+        "47°36.512'N; 122°20.107'W",
         "047°36.512'N 122°20.107'W",
         "N 47 36.512 W 122 20.107",
         "47 36.512N W122 20.107",  # mixed: letter after, then letter before
@@ -212,6 +214,27 @@ def test_rejections_quote_the_text(func, text, words):
     assert repr(text) in message
     assert words in message
     assert isinstance(info.value, InputError)
+
+
+_FUZZ = st.sampled_from(list("0123456789.,;/-+ −°º'′\"″NSEWnsewdx") + ["deg", "''", "nan"])
+
+
+@settings(max_examples=1000, deadline=None)
+@given(st.lists(_FUZZ, max_size=16).map("".join))
+def test_any_text_gives_a_position_or_a_position_error(text):
+    """No other exception escapes, and what is accepted is in range."""
+    for func in (parse_position, parse_lat, parse_lon):
+        try:
+            got = func(text)
+        except PositionError as exc:
+            assert repr(text) in str(exc)
+            continue
+        if func is parse_position:
+            assert -90.0 <= got[0] <= 90.0 and -180.0 <= got[1] < 180.0
+        elif func is parse_lat:
+            assert -90.0 <= got <= 90.0
+        else:
+            assert -180.0 <= got < 180.0
 
 
 def test_rejects_non_text():
