@@ -114,8 +114,8 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
     if not text.strip():
         raise PositionError(f"{what} text {text!r} is empty; expected {_EXAMPLES[what]}")
 
-    def _fail(text: str, why: str) -> PositionError:  # noqa: F811 - names the thing read
-        return PositionError(f"cannot read {what} {text!r}: {why}")
+    def fail(text: str, why: str) -> PositionError:
+        return _fail(text, why, what)
 
     coords: list[_Coord] = []
     commas: list[int] = []
@@ -127,8 +127,8 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
         if cur.parts:
             coords.append(cur)
         elif cur.lead_hemi or cur.sign:
-            what = f"hemisphere {cur.lead_hemi!r}" if cur.lead_hemi else f"sign {cur.sign!r}"
-            raise _fail(text, f"{what} is not followed by a number")
+            lone = f"hemisphere {cur.lead_hemi!r}" if cur.lead_hemi else f"sign {cur.sign!r}"
+            raise fail(text, f"{lone} is not followed by a number")
         cur = _Coord()
 
     # "47d36.512" or "47deg 36.512": a degree sign spelt with letters right after a number
@@ -140,7 +140,7 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
 
     for kind, value, _ in toks:
         if kind == "word" and value.lower() in ("nan", "inf", "infinity"):
-            raise _fail(text, f"{value!r} is not a finite number")
+            raise fail(text, f"{value!r} is not a finite number")
 
     i = 0
     while i < len(toks):
@@ -155,42 +155,40 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
                 if cur.parts:
                     last_digits, last_role = cur.parts[-1]
                     if wanted > last_role and "." in last_digits:
-                        raise _fail(text, f"only the last part of a coordinate may have a "
-                                          f"decimal fraction ({last_digits} is followed by "
-                                          f"{value}{nxt[1]})")
+                        raise fail(text, f"only the last part of a coordinate may have a "
+                                         f"decimal fraction ({last_digits} is followed by "
+                                         f"{value}{nxt[1]})")
                     if role is None or wanted < role:  # going back: the next coordinate
                         close()
                         role = 0
                 if wanted != role:
                     if role == 0:
-                        raise _fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) has no "
-                                          "degrees before it")
-                    raise _fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) follows "
-                                      f"the {_ROLE_NAMES[role - 1]} directly")
+                        raise fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) has no "
+                                         "degrees before it")
+                    raise fail(text, f"{value}{nxt[1]} ({_ROLE_NAMES[wanted]}) follows "
+                                     f"the {_ROLE_NAMES[role - 1]} directly")
             elif role is None:
                 close()
                 role = 0
             cur.parts.append((value, role))
         elif kind in _ROLE_OF_SIGN:
-            raise _fail(text, f"{value!r} does not follow a number")
+            raise fail(text, f"{value!r} does not follow a number")
         elif kind == "word":
             word = value.lower()
             if word in ("n", "s", "e", "w"):
                 hemi = word.upper()
                 if cur.parts and cur.lead_hemi is None:
                     if cur.sign:
-                        raise _fail(text, f"a sign ({cur.sign}) and a hemisphere letter "
-                                          f"({hemi}) together; write one or the other")
+                        raise fail(text, f"a sign ({cur.sign}) and a hemisphere letter "
+                                         f"({hemi}) together; write one or the other")
                     cur.trail_hemi = hemi
                     close()
                 else:
                     close()
                     cur.lead_hemi = hemi
-            elif word in ("nan", "inf", "infinity"):
-                raise _fail(text, f"{value!r} is not a finite number")
             else:
-                raise _fail(text, f"unexpected {value!r}; expected numbers, degree, minute "
-                                  "and second signs and hemisphere letters N S E W")
+                raise fail(text, f"unexpected {value!r}; expected numbers, degree, minute "
+                                 "and second signs and hemisphere letters N S E W")
         elif kind in ("minus", "plus"):
             sign = "-" if kind == "minus" else "+"
             if (kind == "minus" and not spaced and i > 0 and toks[i - 1][0] == "number"
@@ -198,22 +196,22 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
                 # "47-36.512N": a dash between whole degrees and the minutes
                 last_digits, last_role = cur.parts[-1]
                 if last_role != 0 or "." in last_digits:
-                    raise _fail(text, f"a dash may only stand between whole degrees and "
-                                      f"minutes, not after {last_digits}")
+                    raise fail(text, f"a dash may only stand between whole degrees and "
+                                     f"minutes, not after {last_digits}")
             else:
                 if cur.lead_hemi and not cur.parts:
-                    raise _fail(text, f"a sign ({sign}) and a hemisphere letter "
-                                      f"({cur.lead_hemi}) together; write one or the other")
+                    raise fail(text, f"a sign ({sign}) and a hemisphere letter "
+                                     f"({cur.lead_hemi}) together; write one or the other")
                 close()
                 if not nxt or nxt[0] != "number" or nxt[2]:
-                    raise _fail(text, f"sign {value!r} is not followed by a number")
+                    raise fail(text, f"sign {value!r} is not followed by a number")
                 cur.sign = sign
         elif kind == "comma":
             close()
             commas.append(len(coords))
         else:
-            raise _fail(text, f"unexpected {value!r}; expected numbers, degree, minute and "
-                              "second signs and hemisphere letters N S E W")
+            raise fail(text, f"unexpected {value!r}; expected numbers, degree, minute and "
+                             "second signs and hemisphere letters N S E W")
         i += 1
     close()
     return coords, commas
@@ -222,25 +220,26 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
 def _value(text: str, c: _Coord, axis: str, what: str) -> float:
     """The signed value in degrees of one coordinate, checked; ``axis`` is lat or lon."""
 
-    def _fail(text: str, why: str) -> PositionError:  # noqa: F811 - names the thing read
-        return PositionError(f"cannot read {what} {text!r}: {why}")
+    def fail(text: str, why: str) -> PositionError:
+        return _fail(text, why, what)
+
     hemi = c.hemi
     if c.sign and hemi:
-        raise _fail(text, f"a sign ({c.sign}) and a hemisphere letter ({hemi}) together; "
-                          "write one or the other")
+        raise fail(text, f"a sign ({c.sign}) and a hemisphere letter ({hemi}) together; "
+                         "write one or the other")
     if hemi:
         found = "lat" if hemi in "NS" else "lon"
         if found != axis:
             if axis == "lat":
-                raise _fail(text, f"a longitude ({hemi}) where a latitude (N or S) is expected")
-            raise _fail(text, f"a latitude ({hemi}) where a longitude (E or W) is expected")
+                raise fail(text, f"a longitude ({hemi}) where a latitude (N or S) is expected")
+            raise fail(text, f"a latitude ({hemi}) where a longitude (E or W) is expected")
     nums = [float(d) for d, _ in c.parts]
     roles = [r for _, r in c.parts]
     if roles != list(range(len(roles))):
-        raise _fail(text, "degrees, minutes and seconds must come in that order")
+        raise fail(text, "degrees, minutes and seconds must come in that order")
     for (digits, role), num in zip(c.parts, nums):
         if role > 0 and num >= 60.0:
-            raise _fail(text, f"{_ROLE_NAMES[role]} {digits} must be below 60")
+            raise fail(text, f"{_ROLE_NAMES[role]} {digits} must be below 60")
     if len(nums) == 1:
         deg = nums[0]
     elif len(nums) == 2:
@@ -252,7 +251,7 @@ def _value(text: str, c: _Coord, axis: str, what: str) -> float:
     name = "latitude" if axis == "lat" else "longitude"
     if not deg <= limit:  # also a string of digits too long for a float (inf)
         shown = f" {deg:.10g}°" if math.isfinite(deg) else ""
-        raise _fail(text, f"{name}{shown} is out of range; it must be at most {limit:g}°")
+        raise fail(text, f"{name}{shown} is out of range; it must be at most {limit:g}°")
     value = -deg if negative else deg
     if axis == "lon":
         value = _fold_lon(value)
