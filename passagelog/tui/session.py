@@ -31,6 +31,7 @@ class Session:
         self._lock = threading.Lock()
         self.voyage: Voyage | None = None
         self.route: Route | None = None
+        self.plan_revisions: list = []
         self.select_voyage(voyage)
 
     # --- the logbook, per thread ---
@@ -49,7 +50,7 @@ class Session:
 
     # --- voyages ---
     def voyages(self) -> list[Voyage]:
-        return list(self.logbook.voyages())
+        return list(self.logbook.list_voyages())
 
     def select_voyage(self, voyage: str | int | Voyage | None = None) -> Voyage | None:
         """Open ``voyage`` (id, name or object); by default the most recent one."""
@@ -74,9 +75,14 @@ class Session:
         return chosen
 
     def reload_route(self) -> Route | None:
+        """The plan revision in force now (the last of the voyage's plan schedule)."""
         self.route = None
-        if self.voyage is not None and self.voyage.plan_id is not None:
-            self.route = self.logbook.route(self.voyage.plan_id)
+        self.plan_revisions = []
+        if self.voyage is not None:
+            schedule = self.logbook.plan_schedule(self.voyage.voyage_id)
+            self.plan_revisions = schedule
+            if schedule:
+                self.route = schedule[-1][1]
         return self.route
 
     @property
@@ -86,11 +92,23 @@ class Session:
     # --- plan ---
     def save_revision(self, route: Route, note: str) -> Route:
         """Store ``route`` as a new revision of the voyage's plan with its change note."""
-        if self.voyage is None or self.voyage.plan_id is None:
+        if self.voyage is None:
             from passagelog.errors import StoreError
 
-            raise StoreError("no voyage with a plan is open; create one with the CLI first")
-        self.logbook.save_revision(self.voyage.plan_id, route, note=note)
+            raise StoreError("no voyage is open; create one with the command line first")
+        book = self.logbook
+        with book.transaction():
+            assignments = book.plan_assignments(self.voyage.voyage_id)
+            plan_id = assignments[-1].plan_id if assignments else self.voyage.plan_id
+            if plan_id is None:
+                plan_id, _rev = book.create_plan(route, note)
+                book.assign_plan(self.voyage.voyage_id, plan_id)
+                self.voyage = book.voyage(self.voyage.voyage_id)
+            else:
+                book.save_revision(plan_id, route, note)
+                # the new revision is in force from now on (the record of earlier
+                # fixes keeps the revision that was in force then)
+                book.assign_plan(self.voyage.voyage_id, plan_id, from_utc=self.now())
         return self.reload_route()
 
     # --- fixes ---
@@ -105,7 +123,7 @@ class Session:
         return self.logbook.add_fix(self._vid(), fix)
 
     def correct_fix(self, fix_id: int, fix: Fix, reason: str) -> Fix:
-        return self.logbook.correct_fix(fix_id, fix, reason=reason)
+        return self.logbook.correct_fix(self._vid(), fix_id, fix, reason)
 
     def fixes(self) -> list[Fix]:
         return list(self.logbook.fixes(self._vid())) if self.voyage else []
@@ -116,9 +134,12 @@ class Session:
     def latest_fix(self) -> Fix | None:
         return self.logbook.latest_fix(self._vid()) if self.voyage else None
 
-    def change_counter(self) -> int:
-        """A number that changes whenever the logbook does (cheap: polled by Watch)."""
-        return self.logbook.change_counter()
+    def change_counter(self) -> tuple:
+        """Something that changes whenever the logbook does (cheap: polled by Watch):
+        SQLite's data_version (commits by other connections and processes) and the latest
+        fix id (commits by this one)."""
+        book = self.logbook
+        return (book.data_version(), book.latest_fix_id())
 
     # --- log entries ---
     def entries(self) -> list[LogEntry]:

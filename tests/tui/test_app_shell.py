@@ -6,8 +6,8 @@ from passagelog import CAUTION
 from passagelog.tui.app import PassagelogApp
 
 
-async def test_help_shows_bindings_and_the_caution(memory_session):
-    app = PassagelogApp(session=memory_session)
+async def test_help_shows_bindings_and_the_caution(session):
+    app = PassagelogApp(session=session)
     async with app.run_test(size=(100, 30)) as pilot:
         await pilot.press("f1")
         await pilot.pause()
@@ -20,8 +20,8 @@ async def test_help_shows_bindings_and_the_caution(memory_session):
         assert not isinstance(app.screen, HelpScreen)
 
 
-async def test_palette_offers_every_plan_action(memory_session):
-    app = PassagelogApp(session=memory_session)
+async def test_palette_offers_every_plan_action(session):
+    app = PassagelogApp(session=session)
     async with app.run_test(size=(100, 30)):
         titles = {c.title for c in app.get_system_commands(app.screen)}
     for wanted in ("Help", "Show Plan", "Show Watch", "Light or dark", "Plan: insert waypoint",
@@ -29,16 +29,16 @@ async def test_palette_offers_every_plan_action(memory_session):
         assert wanted in titles
 
 
-async def test_light_and_dark(memory_session):
-    app = PassagelogApp(session=memory_session)
+async def test_light_and_dark(session):
+    app = PassagelogApp(session=session)
     async with app.run_test(size=(100, 30)) as pilot:
         assert app.theme == "textual-dark"
         await pilot.press("f9")
         assert app.theme == "textual-light"
 
 
-async def test_insert_a_waypoint_edit_it_and_save_a_revision(memory_session):
-    app = PassagelogApp(session=memory_session)
+async def test_insert_a_waypoint_edit_it_and_save_a_revision(session):
+    app = PassagelogApp(session=session)
     async with app.run_test(size=(100, 30)) as pilot:
         plan = app.query_one("#plan-view")
         await pilot.pause()
@@ -82,15 +82,19 @@ async def test_insert_a_waypoint_edit_it_and_save_a_revision(memory_session):
         await pilot.press(*"Lizard added for a landfall check", "enter")
         await app.workers.wait_for_complete()
         await pilot.pause()
-    assert len(memory_session.revisions) == 1
-    route, note = memory_session.revisions[0]
-    assert note == "Lizard added for a landfall check"
+    route = session.route
+    assert route.revision == 2 and route.note == "Lizard added for a landfall check"
     assert [w.name for w in route.waypoints] == ["Start", "Lizard", "Ushant W", "Mid", "Ponta"]
-    assert route.legs[0].speed_kn == 9.5 and route.revision == 2
+    assert route.legs[0].speed_kn == 9.5
+    # and it is what a fresh reader of the logbook finds in force
+    from passagelog.tui.session import Session
+
+    again = Session(session.db_path)
+    assert again.route.revision == 2 and len(again.route.waypoints) == 5
 
 
-async def test_delete_reverse_and_undo(memory_session):
-    app = PassagelogApp(session=memory_session)
+async def test_delete_reverse_and_undo(session):
+    app = PassagelogApp(session=session)
     async with app.run_test(size=(80, 24)) as pilot:
         plan = app.query_one("#plan-view")
         await pilot.pause()

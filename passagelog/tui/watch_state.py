@@ -1,0 +1,144 @@
+"""What the Watch view shows: the latest fix against the plan, and the alerts it raises.
+
+Plain logic over the reconciliation engine (:mod:`passagelog.review`), no Textual. To stay
+quick with a logbook of a million fixes, the watch reconciles only the recent part of the
+track (``tail_s``, 24 h by default) — enough for the active leg, XTE, progress over the SMG
+window and the latest passages; the Review view reconciles the whole voyage.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from datetime import datetime
+
+import numpy as np
+
+from passagelog.nav.units import NM_M
+
+#: Alert thresholds (common practice; each one is a setting of :class:`WatchSettings`).
+DEFAULT_APPROACH_M = 1.0 * NM_M
+DEFAULT_APPROACH_S = 6 * 60.0
+DEFAULT_PASSED_S = 10 * 60.0
+DEFAULT_NO_FIX_S = 20 * 60.0
+DEFAULT_BEHIND_S = 15 * 60.0
+DEFAULT_TAIL_S = 24 * 3600.0
+
+
+@dataclass(frozen=True)
+class WatchSettings:
+    approach_m: float = DEFAULT_APPROACH_M     # approaching: this close to the next waypoint
+    approach_s: float = DEFAULT_APPROACH_S     # ... or this soon at the speed made good
+    passed_s: float = DEFAULT_PASSED_S         # a passage this recent is announced
+    no_fix_s: float = DEFAULT_NO_FIX_S         # no fix for longer than this
+    behind_s: float = DEFAULT_BEHIND_S         # behind the plan's schedule by more than this
+    tail_s: float = DEFAULT_TAIL_S             # fixes reconciled for the watch
+    window_s: float = 3 * 3600.0               # SMG window of the ETA by recent progress
+
+
+@dataclass(frozen=True)
+class Alert:
+    kind: str      # off-track, approaching, passed, no-fix, behind, suspect
+    text: str
+    severity: str  # "warning" or "information"
+
+
+@dataclass(frozen=True)
+class WatchState:
+    status: object | None            # passagelog.review.status.Status of the latest fix
+    alerts: tuple[Alert, ...] = ()
+    fixes_used: int = 0
+    fixes_total: int = 0
+    last_passage: object | None = None
+    xtl_port_m: float | None = None
+    xtl_stbd_m: float | None = None
+    note: str = ""
+    extra: dict = field(default_factory=dict)
+
+
+def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
+                  settings: WatchSettings = WatchSettings(), plan_revisions=None,
+                  departure_utc: datetime | None = None) -> WatchState:
+    """Reconcile the recent fixes (``fixes``: FixArrays or Fix objects) with ``route``."""
+    from passagelog.review.engine import reconcile
+    from passagelog.review.inputs import as_fix_arrays
+    from passagelog.review.status import status_of
+
+    if route is None:
+        return WatchState(None, note="This voyage has no plan yet: make one in Plan (F2).")
+    arrays = as_fix_arrays(fixes)
+    total = len(arrays)
+    if total == 0:
+        return WatchState(None, note="No fixes yet: log one in Log (F3), or start "
+                                     "'passagelog feed' to log them from the GNSS.")
+    t = arrays.time_s
+    lo = int(np.searchsorted(t, t[-1] - settings.tail_s, side="left"))
+    if lo > 0:
+        arrays = arrays.take(np.arange(lo, total))
+    review = reconcile(plan_revisions or route, arrays, zd_minutes=zd_minutes,
+                       entries=entries, window_s=settings.window_s,
+                       departure_utc=departure_utc if lo == 0 else None)
+    if len(review.fixes) == 0:
+        return WatchState(None, fixes_total=total, note="No valid fix to show.")
+    status = status_of(review, -1)
+    rroute = review.routes[status.revision]
+    leg = rroute.legs[status.leg - 1]
+    passage = None
+    for p in reversed(review.passages):
+        if p.revision == status.revision:
+            passage = p
+            break
+    return WatchState(status, fixes_used=len(review.fixes), fixes_total=total,
+                      last_passage=passage, xtl_port_m=leg.xtl_port_m,
+                      xtl_stbd_m=leg.xtl_stbd_m,
+                      extra={"arrival_radius_m": rroute.waypoints[status.leg].arrival_radius_m})
+
+
+def alerts_for(state: WatchState, now_s: float,
+               settings: WatchSettings = WatchSettings()) -> tuple[Alert, ...]:
+    """The alerts at time ``now_s`` (float seconds UTC): recomputed on every clock tick, so
+    'no fix for too long' appears without a new fix."""
+    s = state.status
+    if s is None:
+        return ()
+    out: list[Alert] = []
+    age = now_s - s.time_s
+    if age > settings.no_fix_s:
+        out.append(Alert("no-fix", f"NO FIX for {_hm(age)} (limit {_hm(settings.no_fix_s)})",
+                         "warning"))
+    if s.phase == "arrived":
+        out.append(Alert("arrived", f"Arrived at {s.destination}.", "information"))
+        return tuple(out)
+    if s.suspect:
+        out.append(Alert("suspect", "Latest fix is SUSPECT (implausible speed): check it.",
+                         "warning"))
+    if not s.inside_xtl and s.xtl_m is not None:
+        side = "starboard" if s.side == "R" else "port"
+        out.append(Alert("off-track", f"OFF TRACK: XTE {abs(s.xte_m) / NM_M:.2f} NM {side}, "
+                                      f"limit {s.xtl_m / NM_M:.2f} NM", "warning"))
+    ttw = None
+    if s.smg_window_kn and s.smg_window_kn > 0 and np.isfinite(s.dtw_m):
+        ttw = s.dtw_m / (s.smg_window_kn * NM_M / 3600.0)
+    radius = state.extra.get("arrival_radius_m") or 0.0
+    if s.dtw_m <= max(settings.approach_m, radius) or (ttw is not None
+                                                       and ttw <= settings.approach_s):
+        eta = f", about {_hm(ttw)} to go" if ttw is not None else ""
+        out.append(Alert("approaching", f"Approaching WP{s.leg + 1} {s.to_wp}: "
+                                        f"{s.dtw_m / NM_M:.2f} NM{eta}", "information"))
+    p = state.last_passage
+    if p is not None and s.time_s - p.time_s <= settings.passed_s:
+        from datetime import timezone
+
+        when = datetime.fromtimestamp(p.time_s, timezone.utc).strftime("%H%MZ")
+        how = "arrival circle" if p.how == "arrival-circle" else "bisector"
+        skipped = ", SKIPPED (passed wide)" if p.skipped else ""
+        out.append(Alert("passed", f"Passed WP{p.waypoint} {p.name} at {when} ({how}){skipped}",
+                         "warning" if p.skipped else "information"))
+    if s.delay_s is not None and s.delay_s > settings.behind_s:
+        out.append(Alert("behind", f"BEHIND SCHEDULE by {_hm(s.delay_s)}", "warning"))
+    return tuple(out)
+
+
+def _hm(seconds: float) -> str:
+    minutes = int(round(seconds / 60.0))
+    h, m = divmod(minutes, 60)
+    return f"{h}h{m:02d}" if h else f"{m} min"

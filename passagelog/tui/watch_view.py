@@ -1,0 +1,174 @@
+"""The Watch view: the latest fix against the plan, followed live, with alerts.
+
+A timer polls the logbook's change counter (a cheap query) every ``app.watch_poll_s``
+seconds; when it moves, the recent fixes are reconciled in a worker thread and the view is
+redrawn, so a fix written by ``passagelog feed`` shows within a second. The clock tick also
+re-checks 'no fix for too long' without waiting for a fix.
+"""
+
+from __future__ import annotations
+
+from datetime import datetime, timezone
+
+from rich.table import Table
+from rich.text import Text
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Vertical
+from textual.widgets import Static
+
+from passagelog.errors import PassagelogError
+from passagelog.nav.units import NM_M
+from passagelog.tui import text as fmt
+from passagelog.tui.watch_state import WatchSettings, WatchState, alerts_for, compute_watch
+from passagelog.tui.xte_bar import XteBar
+
+
+def _t(ts: float | None) -> datetime | None:
+    return None if ts is None else datetime.fromtimestamp(ts, timezone.utc)
+
+
+class WatchView(Vertical, can_focus=True):
+    """Latest fix, active leg, XTE bar, progress and ETAs, alerts."""
+
+    BINDINGS = [Binding("ctrl+l", "refresh_now", "Refresh")]
+    PALETTE = (("Watch: refresh now", "refresh_now", "Reconcile the latest fixes now"),)
+
+    def __init__(self, session, settings: WatchSettings = WatchSettings(), **kwargs) -> None:
+        super().__init__(**kwargs)
+        self.session = session
+        self.settings = settings
+        self.state: WatchState | None = None
+        self._counter: object = None
+        self.updates = 0
+
+    def compose(self) -> ComposeResult:
+        yield Static("Reading the logbook…", id="watch-head", classes="view-head")
+        yield Static("", id="watch-leg")
+        yield XteBar(id="watch-bar")
+        yield Static("", id="watch-figures")
+        yield Static("", id="watch-alerts")
+
+    def on_mount(self) -> None:
+        poll = getattr(self.app, "watch_poll_s", 0.5)
+        self.set_interval(poll, self._poll)
+        self._poll()
+
+    def _poll(self) -> None:
+        try:
+            counter = self.session.change_counter()
+        except PassagelogError as exc:
+            self.query_one("#watch-head", Static).update(f"Logbook not readable: {exc}")
+            return
+        if counter != self._counter:
+            self._counter = counter
+            self.recompute()
+        else:
+            self._draw_alerts()
+
+    def action_refresh_now(self) -> None:
+        self.recompute()
+
+    @work(thread=True, exclusive=True, group="watch")
+    def recompute(self) -> None:
+        s = self.session
+        try:
+            s.reload_route() if hasattr(s, "reload_route") else None
+            state = compute_watch(s.route, s.fix_arrays(), zd_minutes=s.zd_minutes,
+                                  entries=s.entries(), settings=self.settings)
+        except PassagelogError as exc:
+            state = WatchState(None, note=f"Cannot reconcile: {exc}")
+        self.app.call_from_thread(self._show, state)
+
+    def _show(self, state: WatchState) -> None:
+        self.state = state
+        self.updates += 1
+        self.draw()
+
+    def draw(self) -> None:
+        state = self.state
+        head = self.query_one("#watch-head", Static)
+        leg_line = self.query_one("#watch-leg", Static)
+        figures = self.query_one("#watch-figures", Static)
+        bar = self.query_one("#watch-bar", XteBar)
+        if state is None or state.status is None:
+            head.update(state.note if state else "Reading the logbook…")
+            leg_line.update("")
+            figures.update("")
+            bar.display = False
+            self._draw_alerts()
+            return
+        st = state.status
+        zd = self.session.zd_minutes
+        t = _t(st.time_s)
+        head.update(
+            f"Latest fix {fmt.utc_time(t)}  ship {fmt.ship_time(t, zd)}  "
+            f"{fmt.position(st.lat, st.lon)}"
+            + ("  [b]SUSPECT[/b]" if st.suspect else "")
+        )
+        leg = self.session.route.legs[st.leg - 1] if self.session.route and \
+            st.leg - 1 < len(self.session.route.legs) else None
+        sail = "" if leg is None else (" great circle" if leg.sailing == "great-circle"
+                                       else " rhumb line")
+        side = {"R": "R (starboard)", "L": "L (port)", "": "on the line"}[st.side]
+        leg_line.update(Text.assemble(
+            ("Leg ", ""), (f"{st.leg}/{st.legs}", "bold"), f"  {st.from_wp} → {st.to_wp}{sail}"
+            f"   XTE ", (f"{abs(st.xte_m) / NM_M:.2f} NM {side}", "bold"),
+            ("" if st.inside_xtl else "  OUTSIDE LIMIT", "bold reverse"),
+        ))
+        bar.display = True
+        bar.xte_m, bar.port_m, bar.stbd_m = st.xte_m, state.xtl_port_m, state.xtl_stbd_m
+        grid = Table.grid(padding=(0, 2))
+        grid.add_column(style="dim")
+        grid.add_column()
+        grid.add_column(style="dim")
+        grid.add_column()
+        ttg = None
+        if st.smg_window_kn:
+            ttg = st.dtw_m / (st.smg_window_kn * NM_M / 3600.0)
+        window_h = f"{st.window_s / 3600:g} h"
+        grid.add_row("Along leg", f"{st.along_m / NM_M:.1f} NM", "Leg to go",
+                     f"{st.leg_to_go_m / NM_M:.1f} NM")
+        grid.add_row(f"DTW {st.to_wp}", f"{st.dtw_m / NM_M:.1f} NM", "BTW", fmt.course(st.btw))
+        grid.add_row("TTG (SMG)", fmt.duration(ttg), "Route to go",
+                     f"{st.route_to_go_m / NM_M:.1f} NM")
+        grid.add_row(f"ETA {st.to_wp}", f"plan {fmt.utc_time(_t(st.eta_wp_plan_s))}",
+                     "by progress", fmt.utc_time(_t(st.eta_wp_smg_s)))
+        grid.add_row(f"ETA {st.destination}", f"plan {fmt.utc_time(_t(st.eta_dest_plan_s))}",
+                     "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
+        smg = "–" if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
+        grid.add_row(f"SMG/CMG {window_h}", f"{smg} {fmt.course(st.cmg_window)}",
+                     "Set/drift", "–" if st.drift_kn is None else
+                     f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")
+        if st.delay_s is None:
+            sched = "–"
+        elif st.delay_s >= 0:
+            sched = f"{fmt.duration(st.delay_s)} behind"
+        else:
+            sched = f"{fmt.duration(-st.delay_s)} ahead"
+        grid.add_row("Schedule", sched, "Fixes", f"{state.fixes_used} of {state.fixes_total}")
+        figures.update(grid)
+        self._draw_alerts()
+
+    def current_alerts(self):
+        if self.state is None:
+            return ()
+        return alerts_for(self.state, self.session.now().timestamp(), self.settings)
+
+    def _draw_alerts(self) -> None:
+        box = self.query_one("#watch-alerts", Static)
+        alerts = self.current_alerts()
+        if not alerts:
+            box.update(Text("No alerts.", style="dim") if self.state and self.state.status
+                       else "")
+            box.remove_class("-alert")
+            return
+        text = Text()
+        for i, a in enumerate(alerts):
+            if i:
+                text.append("\n")
+            mark = "! " if a.severity == "warning" else "· "
+            text.append(mark + a.text, style="bold" if a.severity == "warning" else "")
+        box.update(text)
+        box.set_class(any(a.severity == "warning" for a in alerts), "-alert")

@@ -1,0 +1,87 @@
+"""Watch: the latest fix against the plan, live, with alerts (real temp-file logbook)."""
+
+from __future__ import annotations
+
+from datetime import datetime, timedelta, timezone
+
+import pytest
+
+from passagelog.model import Fix
+from passagelog.nav.geodesic import direct
+from passagelog.nav.legs import make_leg
+from passagelog.tui.xte_bar import bar_text
+
+pytest.importorskip("passagelog.review.status")
+
+NM = 1852.0
+
+
+def point_off_leg(route, k, along_m, xte_m):
+    """A position ``xte_m`` to the right (+) of leg k (1-based) at ``along_m``: the foot on
+    the geodesic, then the geodesic direct problem at right angles (geographiclib)."""
+    a, b = route.waypoints[k - 1], route.waypoints[k]
+    leg = make_leg(a.lat, a.lon, b.lat, b.lon, "great-circle")
+    lat, lon = leg.point_at(along_m)
+    _s, course, _ = __import__("passagelog.nav.geodesic", fromlist=["inverse"]).inverse(
+        lat, lon, b.lat, b.lon)
+    plat, plon, _ = direct(lat, lon, (course + (90.0 if xte_m >= 0 else -90.0)) % 360.0,
+                           abs(xte_m))
+    return plat, plon
+
+
+def add_track(session, route, times_and_offsets):
+    for t, k, along, xte in times_and_offsets:
+        lat, lon = point_off_leg(route, k, along, xte)
+        session.add_fix(Fix(t, lat, lon, sog_kn=12.0))
+
+
+async def test_watch_follows_a_new_fix_and_raises_off_track(session):
+    from passagelog.tui.app import PassagelogApp
+
+    route = session.route
+    t0 = datetime(2026, 5, 2, 11, 0, tzinfo=timezone.utc)
+    # on leg 2 (Ushant W -> Mid): 0.30 NM to starboard, inside the 2 NM limit
+    add_track(session, route, [(t0 - timedelta(hours=30), 1, 10 * NM, 0.0),
+                               (t0 - timedelta(minutes=30), 2, 100 * NM, 0.1 * NM),
+                               (t0, 2, 106 * NM, 0.3 * NM)])
+    app = PassagelogApp(session=session, watch_poll_s=0.1)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f4")
+        watch = app.query_one("#watch-view")
+        for _ in range(50):
+            await pilot.pause(0.05)
+            if watch.state is not None and watch.state.status is not None:
+                break
+        st = watch.state.status
+        assert st.leg == 2 and st.to_wp == "Mid"
+        assert st.xte_m == pytest.approx(0.3 * NM, abs=0.01)  # built at 0.30 NM right
+        leg_line = str(app.query_one("#watch-leg").render())
+        assert "0.30 NM R (starboard)" in leg_line
+        assert not [a for a in watch.current_alerts() if a.kind == "off-track"]
+        # a fix written by another connection (as the feed does) shows on the next poll
+        from passagelog.store import Logbook
+
+        other = Logbook.open(session.db_path)
+        lat, lon = point_off_leg(route, 2, 112 * NM, -2.5 * NM)
+        other.add_fix(session.voyage.voyage_id, Fix(t0 + timedelta(minutes=30), lat, lon))
+        other.close()
+        seen = watch.updates
+        for _ in range(50):
+            await pilot.pause(0.05)
+            if watch.updates > seen and watch.state.status.time_s > t0.timestamp():
+                break
+        st = watch.state.status
+        assert st.xte_m == pytest.approx(-2.5 * NM, abs=0.01)
+        kinds = {a.kind for a in watch.current_alerts()}
+        assert "off-track" in kinds
+        assert "2.50 NM port" in str(app.query_one("#watch-alerts").render())
+
+
+def test_xte_bar_marks_the_side_and_the_limits():
+    text = bar_text(0.0, 926.0, 1852.0, 40).plain
+    assert text.startswith("P 0.50 ") and text.endswith(" 1.00 S")
+    centre = bar_text(0.0, 1852.0, 1852.0, 41).plain
+    right = bar_text(926.0, 1852.0, 1852.0, 41).plain
+    left = bar_text(-926.0, 1852.0, 1852.0, 41).plain
+    assert left.index("◆") < centre.index("◆") < right.index("◆")
+    assert bar_text(None, None, None, 30).plain.count("◆") == 0
