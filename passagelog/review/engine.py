@@ -1,0 +1,790 @@
+"""The reconciliation engine: every fix against the plan in force, and the voyage's tables.
+
+How the active leg is found (a sequential state machine, run in vectorised chunks)
+----------------------------------------------------------------------------------------
+The craft starts on leg 1 of the plan revision in force. The active leg k (from waypoint k to
+waypoint k+1) advances when waypoint k+1 is *passed*: at the first fix that either lies inside
+the waypoint's arrival circle (``Waypoint.arrival_radius_m``, or the review's default) or lies
+beyond the *bisector of the course alteration* at the waypoint, whichever comes first.
+
+The bisector is the geodesic through the waypoint whose azimuth there halves the angle between
+the reversed incoming course (the leg's final course) and the outgoing course (the next leg's
+initial course). With ``a2`` the azimuth at the waypoint of the geodesic from the fix to the
+waypoint, the fix lies beyond the bisector when ``cos(a2 - c_in) + cos(a2 - c_out) <= 0``
+(the unit vector from the waypoint to the fix has a non-negative component along
+``u_in + u_out``, the bisector's normal). At the last waypoint, and where the legs fold back
+on each other (alteration over :data:`HAIRPIN_DEG`), the perpendicular to the incoming leg is
+used: ``cos(a2 - c_in) <= 0``. So each fix costs one geodesic inverse (fix -> next waypoint),
+which also gives the distance and bearing to the waypoint that every fix reports.
+
+Fixes are taken a chunk at a time against the active waypoint; numpy finds the first passing
+fix in the chunk; the engine advances and goes on from that fix, which is tested at once
+against the following waypoint (so several waypoints may be passed at one fix, e.g. after a
+gap). The chunk length follows the progress toward the waypoint, so each fix is examined
+against O(1) waypoints.
+
+What the rules give in the awkward cases:
+
+* a skipped waypoint: the craft heads for a later one and crosses the skipped waypoint's
+  bisector on the way; the passage is recorded and marked ``skipped`` because the craft was
+  farther from the waypoint than the skip distance;
+* loitering or drifting at anchor short of a waypoint: no passage until the circle is
+  entered or the bisector crossed; fixes keep their leg and their XTE, along-track and
+  distances to go;
+* turning back: the active leg never goes back by itself; along-track decreases (it may go
+  negative before the leg's start) and the distances to go grow;
+* fixes before the departure time are reported against leg 1 but never pass a waypoint and
+  stay out of the statistics; so do fixes after the arrival (the passage of the last waypoint
+  or the arrival time given);
+* a plan revision in force from a time: the new route is taken from that time. If the last
+  waypoint passed (or the start) is also a waypoint of the new route (same position within
+  :data:`SAME_WAYPOINT_M`, the same name preferred), the craft goes on from there; otherwise
+  the new route is entered at leg 1 and, at the first fix under the new revision, advanced
+  silently over every waypoint that fix has already passed;
+* suspect fixes never pass a waypoint and are left out of the statistics unless asked.
+
+Cross-track and along-track come from :mod:`passagelog.nav.legs` (foot of the shortest geodesic
+on the leg's line extended past its ends); the per-fix figures are computed once the leg
+assignment is known, leg by leg, in batch.
+"""
+
+from __future__ import annotations
+
+import math
+from datetime import datetime
+from typing import Any, Iterable, Mapping, Sequence
+
+import numpy as np
+
+from passagelog.errors import InputError
+from passagelog.model import LogEntry, Route
+from passagelog.nav.earth import WGS84, Earth, get_earth
+from passagelog.nav.geodesic import direct, inverse, inverse_np
+from passagelog.nav.units import KN_MPS
+from passagelog.review.inputs import (
+    FixArrays,
+    PlanRevision,
+    as_fix_arrays,
+    as_revisions,
+    clocks_from,
+    to_seconds,
+)
+from passagelog.review.results import (
+    ARRIVED,
+    BEFORE_DEPARTURE,
+    MIN_PROGRESS_KN,
+    UNDER_WAY,
+    Episode,
+    FixResults,
+    Gap,
+    LegStats,
+    Passage,
+    Review,
+    Settings,
+    SuspectFix,
+)
+
+#: Default window for the speed made good behind the ETA "by recent progress", seconds.
+DEFAULT_WINDOW_S = 3 * 3600.0
+#: Default threshold for a gap between fixes (position source lost), seconds.
+DEFAULT_GAP_S = 3600.0
+#: Course alterations larger than this are treated as folding back: the perpendicular to the
+#: incoming leg replaces the bisector, degrees.
+HAIRPIN_DEG = 175.0
+#: Two waypoints of different revisions closer than this are the same waypoint, metres.
+SAME_WAYPOINT_M = 1.0
+#: A waypoint passed farther off than this (when no limits say otherwise) counts as skipped.
+DEFAULT_SKIP_M = 1852.0
+#: Chunk lengths of the state machine (fixes).
+CHUNK_MIN, CHUNK_START, CHUNK_MAX = 64, 1024, 131072
+
+
+def _make_leg(lat1, lon1, lat2, lon2, sailing, earth):
+    from passagelog.nav.legs import make_leg
+
+    return make_leg(lat1, lon1, lat2, lon2, sailing, earth=earth)
+
+
+def _signed(a: np.ndarray | float):
+    return (np.asarray(a) + 180.0) % 360.0 - 180.0
+
+
+class _RoutePlan:
+    """One revision's route with its legs built and the constants the engine needs."""
+
+    def __init__(self, rev: PlanRevision, earth: Earth, default_radius_m: float | None,
+                 default_speed_kn: float | None, skip_m: float | None):
+        route = rev.route
+        self.rev = rev
+        self.route = route
+        wps = route.waypoints
+        self.n_legs = len(route.legs)
+        self.legs = []
+        for k, plan in enumerate(route.legs):
+            a, b = wps[k], wps[k + 1]
+            try:
+                self.legs.append(_make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing, earth))
+            except InputError as exc:
+                raise InputError(f"route {route.name!r} leg {k + 1} ({a.name} -> {b.name}): "
+                                 f"{exc}") from None
+            except Exception as exc:  # GeometryError: zero-length leg
+                raise type(exc)(f"route {route.name!r} leg {k + 1} ({a.name} -> {b.name}): "
+                                f"{exc}") from None
+        self.length = np.array([leg.distance_m for leg in self.legs])
+        self.cum_start = np.concatenate([[0.0], np.cumsum(self.length)[:-1]])
+        self.total = float(self.length.sum())
+        self.wp_cum = np.concatenate([[0.0], np.cumsum(self.length)])
+        speeds = [p.speed_kn if p.speed_kn else default_speed_kn for p in route.legs]
+        self.speed_kn = np.array([np.nan if v is None else float(v) for v in speeds])
+        leg_time = self.length / (self.speed_kn * KN_MPS)
+        # time by plan from the end of leg k to the destination
+        self.time_after = np.concatenate([np.cumsum(leg_time[::-1])[::-1][1:], [0.0]])
+        self.leg_time = leg_time
+        self.port = np.array([np.inf if p.xtl_port_m is None else p.xtl_port_m
+                              for p in route.legs])
+        self.stbd = np.array([np.inf if p.xtl_stbd_m is None else p.xtl_stbd_m
+                              for p in route.legs])
+        self.radius = np.array([
+            (w.arrival_radius_m if w.arrival_radius_m is not None else (default_radius_m or 0.0))
+            for w in wps
+        ])
+        # bisector constants at the end of each leg
+        self.c_in = np.array([leg.final_course for leg in self.legs])
+        c_out = [self.legs[k + 1].initial_course if k + 1 < self.n_legs else math.nan
+                 for k in range(self.n_legs)]
+        self.c_out = np.array(c_out)
+        alter = np.abs(_signed(self.c_out - self.c_in))
+        self.perpendicular = ~(alter <= HAIRPIN_DEG)  # NaN (last waypoint) -> True
+        # skip distance at each waypoint: the largest limit of the legs meeting there
+        self.skip = np.full(len(wps), DEFAULT_SKIP_M if skip_m is None else skip_m)
+        if skip_m is None:
+            for w in range(len(wps)):
+                lims = []
+                for k in (w - 1, w):
+                    if 0 <= k < self.n_legs:
+                        p = route.legs[k]
+                        lims += [x for x in (p.xtl_port_m, p.xtl_stbd_m) if x is not None]
+                lims.append(self.radius[w])
+                cand = max(lims) if lims else 0.0
+                if cand > 0.0:
+                    self.skip[w] = cand
+        self.wp_lat = np.array([w.lat for w in wps])
+        self.wp_lon = np.array([w.lon for w in wps])
+        self.names = tuple(w.name for w in wps)
+
+    def passed_np(self, k: int, s: np.ndarray, azi2: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Which fixes, at distance ``s`` and arriving azimuth ``azi2`` from waypoint k+1,
+        have passed it: (passed, by_circle)."""
+        r = self.radius[k + 1]
+        circle = s <= r if r > 0.0 else np.zeros(s.shape, bool)
+        a = np.radians(azi2)
+        cin = math.radians(self.c_in[k])
+        if self.perpendicular[k]:
+            beyond = np.cos(a - cin) <= 0.0
+        else:
+            beyond = np.cos(a - cin) + np.cos(a - math.radians(self.c_out[k])) <= 0.0
+        beyond |= s < 1e-3
+        return circle | beyond, circle
+
+
+def _schedule_times(rp: _RoutePlan, departure_s: float | None,
+                    given: Sequence[Any] | None) -> np.ndarray:
+    """Scheduled time at each waypoint (NaN where none): a given list, else the route's own
+    schedule, else the departure plus the planned leg times."""
+    n = len(rp.route.waypoints)
+    out = np.full(n, np.nan)
+    if given is not None:
+        if len(given) != n:
+            raise InputError(f"schedule for route {rp.route.name!r} has {len(given)} times; "
+                             f"the route has {n} waypoints")
+        for i, t in enumerate(given):
+            ts = to_seconds(t, f"schedule time at waypoint {i + 1}") if t is not None else None
+            if ts is not None:
+                out[i] = ts
+    elif rp.route.schedule:
+        for item in rp.route.schedule:
+            t = item.eta_utc if item.eta_utc is not None else item.etd_utc
+            if item.waypoint_index == 0 and item.etd_utc is not None:
+                t = item.etd_utc
+            if t is not None:
+                out[item.waypoint_index] = to_seconds(t)
+    elif departure_s is not None and np.all(np.isfinite(rp.leg_time)):
+        out = departure_s + np.concatenate([[0.0], np.cumsum(rp.leg_time)])
+    if departure_s is not None and not np.isfinite(out[0]) and np.isfinite(out).any():
+        out[0] = departure_s
+    return out
+
+
+def _entry_time(entries: Iterable[LogEntry], kind: str) -> float | None:
+    times = [to_seconds(e.time_utc) for e in entries if e.kind == kind]
+    return min(times) if times else None
+
+
+def _prev_index(mask: np.ndarray) -> np.ndarray:
+    """For each position, the index of the last earlier position where ``mask`` holds
+    (-1 where none)."""
+    n = mask.size
+    idx = np.where(mask, np.arange(n), -1)
+    last = np.maximum.accumulate(idx) if n else idx
+    prev = np.empty(n, np.int64)
+    if n:
+        prev[0] = -1
+        prev[1:] = last[:-1]
+    return prev
+
+
+def _dr_currents(f_lat, f_lon, t, heading, stw_kn, prev, ok, earth):
+    """Set and drift at each fix from the DR of the previous fix (its heading and speed
+    through the water held over the interval) to the fix: arrays (set, drift_kn)."""
+    n = t.size
+    set_deg = np.full(n, np.nan)
+    drift = np.full(n, np.nan)
+    use = ok.copy()
+    p = prev[use]
+    i = np.flatnonzero(use)
+    if i.size == 0:
+        return set_deg, drift
+    dt = t[i] - t[p]
+    run = stw_kn[p] * KN_MPS * dt
+    from passagelog.nav import rhumb
+
+    dr_lat, dr_lon = rhumb.rhumb_direct_np(f_lat[p], f_lon[p], heading[p], run, earth)
+    dist, course = rhumb.rhumb_inverse_np(dr_lat, dr_lon, f_lat[i], f_lon[i], earth)
+    drift[i] = dist / dt / KN_MPS
+    set_deg[i] = np.where(dist > 0.0, np.mod(course, 360.0), np.nan)
+    return set_deg, drift
+
+
+def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fixes: Any, *,
+              departure_utc: datetime | float | None = None,
+              arrival_utc: datetime | float | None = None,
+              zd_minutes: int = 0,
+              entries: Iterable[LogEntry] = (),
+              window_s: float = DEFAULT_WINDOW_S,
+              gap_s: float = DEFAULT_GAP_S,
+              include_suspect: bool = False,
+              max_speed_kn: float | None = None,
+              arrival_radius_m: float | None = None,
+              skip_distance_m: float | None = None,
+              default_speed_kn: float | None = None,
+              schedule: Mapping[int, Sequence[Any]] | Sequence[Any] | None = None,
+              earth: Earth | str = WGS84) -> Review:
+    """Reconcile ``fixes`` with ``plan`` and return the :class:`Review`.
+
+    ``plan``: a Route, or ``[(from_utc, Route), ...]`` for revisions in force from a time.
+    ``fixes``: Fix objects or columns (see :func:`passagelog.review.inputs.as_fix_arrays`).
+    ``departure_utc``/``arrival_utc``: actual times (else the first ``departure``/``arrival``
+    log entry; else the first fix and the passage of the last waypoint). ``zd_minutes``: the
+    ship's zone description at departure, changed by ``clock-change`` entries (noon figures).
+    ``window_s``: window of the SMG behind the ETA by recent progress. ``gap_s``: intervals
+    without a fix longer than this are gaps. ``include_suspect``: let suspect fixes count.
+    ``max_speed_kn``: also flag fixes whose implied speed from the previous good fix exceeds
+    it. ``arrival_radius_m``: arrival circle for waypoints that have none. ``skip_distance_m``:
+    a passage farther off than this is marked skipped (default: the largest cross-track limit
+    or arrival radius at the waypoint, else 1 NM). ``default_speed_kn``: planned speed of
+    legs that have none. ``schedule``: scheduled time per waypoint (one list for a single
+    route, or ``{revision: list}``), overriding the route's own. ``earth``: figure for all
+    distances (WGS84).
+    """
+    earth = get_earth(earth)
+    entries = list(entries)
+    if not (isinstance(window_s, (int, float)) and math.isfinite(window_s) and window_s > 0):
+        raise InputError(f"SMG window {window_s!r} s must be a positive number of seconds")
+    if not (isinstance(gap_s, (int, float)) and math.isfinite(gap_s) and gap_s > 0):
+        raise InputError(f"gap threshold {gap_s!r} s must be a positive number of seconds")
+    if max_speed_kn is not None and not (math.isfinite(max_speed_kn) and max_speed_kn > 0):
+        raise InputError(f"maximum speed {max_speed_kn!r} kn must be a positive number")
+    revisions = as_revisions(plan)
+    clocks = clocks_from(zd_minutes, entries)
+    plans = [_RoutePlan(r, earth, arrival_radius_m, default_speed_kn, skip_distance_m)
+             for r in revisions]
+
+    raw = as_fix_arrays(fixes)
+    valid = (np.isfinite(raw.time_s) & np.isfinite(raw.lat) & np.isfinite(raw.lon)
+             & (np.abs(raw.lat) <= 90.0))
+    order = np.flatnonzero(valid)
+    order = order[np.argsort(raw.time_s[order], kind="stable")]
+    f = raw.take(order)
+    n = len(f)
+    t = f.time_s
+    lat = f.lat
+    lon = (f.lon + 180.0) % 360.0 - 180.0
+
+    # ---------------------------------------------------------------- suspects
+    suspect = f.suspect.copy()
+    reason = np.where(suspect, "logbook", "")
+    implied = np.full(n, np.nan)
+    if n > 1:
+        # the speed implied from the previous fix (all fixes; the logbook's own check)
+        d, _, _ = inverse_np(lat[:-1], lon[:-1], lat[1:], lon[1:], earth)
+        dt = np.diff(t)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            implied[1:] = np.where(dt > 0, d / dt / KN_MPS, np.where(d > 0, np.inf, 0.0))
+    if max_speed_kn is not None and n > 1:
+        # against the previous good fix: sequential, as one wild fix must not condemn the next
+        last = 0
+        for i in range(1, n):
+            if suspect[i]:
+                continue
+            if last != i - 1:
+                dd, _, _ = inverse(lat[last], lon[last], lat[i], lon[i], earth)
+                dti = t[i] - t[last]
+                sp = dd / dti / KN_MPS if dti > 0 else (math.inf if dd > 0 else 0.0)
+                implied[i] = sp
+            else:
+                sp = implied[i]
+            if sp > max_speed_kn:
+                suspect[i] = True
+                reason[i] = "speed"
+            else:
+                last = i
+    good = ~suspect | include_suspect
+
+    # ---------------------------------------------------------------- departure, arrival
+    dep_s = to_seconds(departure_utc, "departure time")
+    if dep_s is None:
+        dep_s = _entry_time(entries, "departure")
+    if dep_s is None and n:
+        dep_s = float(t[np.argmax(good)]) if good.any() else float(t[0])
+    arr_given = to_seconds(arrival_utc, "arrival time")
+    if arr_given is None:
+        arr_given = _entry_time(entries, "arrival")
+    phase = np.full(n, UNDER_WAY, np.int8)
+    if dep_s is not None:
+        phase[t < dep_s] = BEFORE_DEPARTURE
+    if arr_given is not None:
+        phase[t > arr_given] = ARRIVED
+
+    # ---------------------------------------------------------------- state machine
+    rev_starts = np.array([r.from_s for r in revisions])
+    rev_of = np.searchsorted(rev_starts, t, side="right") - 1
+    rev_of[rev_of < 0] = 0
+    leg0 = np.zeros(n, np.int64)  # 0-based leg
+    dtw = np.full(n, np.nan)
+    btw = np.full(n, np.nan)
+    passage_raw: list[tuple[int, int, int, str, float]] = []  # (rev, k, fix, how, dist)
+    can_pass = good & (phase == UNDER_WAY)
+    arrived_at: int | None = None
+    last_wp: tuple[int, int] = (0, 0)  # (revision, waypoint index) last passed or started at
+    k = 0
+    for r, rp in enumerate(plans):
+        idx = np.flatnonzero(rev_of == r)
+        if idx.size == 0:
+            continue
+        a, b = int(idx[0]), int(idx[-1]) + 1
+        if r > 0:
+            k = _enter_revision(plans[last_wp[0]], last_wp[1], rp, earth)
+            first = a + int(np.argmax(can_pass[a:b])) if can_pass[a:b].any() else None
+            if first is not None:
+                while k < rp.n_legs - 1:
+                    s1, _, a2 = inverse(lat[first], lon[first], rp.wp_lat[k + 1],
+                                        rp.wp_lon[k + 1], earth)
+                    ok, _ = rp.passed_np(k, np.array([s1]), np.array([a2]))
+                    if not ok[0]:
+                        break
+                    k += 1
+            last_wp = (r, k)
+        i = a
+        chunk = CHUNK_START
+        while i < b:
+            m = min(b, i + chunk)
+            s, a1, a2 = inverse_np(lat[i:m], lon[i:m], rp.wp_lat[k + 1], rp.wp_lon[k + 1],
+                                   earth)
+            passed, circle = rp.passed_np(k, s, a2)
+            passed &= can_pass[i:m]
+            if passed.any():
+                j = int(np.argmax(passed))
+                leg0[i:i + j] = k
+                dtw[i:i + j] = s[:j]
+                btw[i:i + j] = a1[:j]
+                how = "arrival-circle" if circle[j] else "bisector"
+                passage_raw.append((r, k, i + j, how, float(s[j])))
+                k += 1
+                i += j
+                last_wp = (r, k)
+                chunk = CHUNK_START
+                if k == rp.n_legs:
+                    arrived_at = i
+                    break
+            else:
+                leg0[i:m] = k
+                dtw[i:m] = s
+                btw[i:m] = a1
+                span = m - i
+                i = m
+                rate = (s[0] - s[-1]) / (span - 1) if span > 1 else 0.0
+                if rate > 0.0:
+                    chunk = int(min(CHUNK_MAX, max(CHUNK_MIN, 1.1 * s[-1] / rate + 32)))
+                else:
+                    chunk = min(CHUNK_MAX, chunk * 2)
+        if arrived_at is not None:
+            break
+    if arrived_at is not None:
+        r_arr = passage_raw[-1][0]
+        rev_of[arrived_at:] = r_arr
+        leg0[arrived_at:] = plans[r_arr].n_legs - 1
+        phase[arrived_at:] = ARRIVED
+        rp = plans[r_arr]
+        s, a1, _ = inverse_np(lat[arrived_at:], lon[arrived_at:], rp.wp_lat[-1], rp.wp_lon[-1],
+                              earth)
+        dtw[arrived_at:] = s
+        btw[arrived_at:] = a1
+        arr_s = float(t[arrived_at])
+        if arr_given is not None:
+            arr_s = min(arr_s, arr_given)
+    else:
+        arr_s = arr_given
+    can_count = good & (phase == UNDER_WAY)
+
+    # ---------------------------------------------------------------- offsets, leg by leg
+    xte = np.full(n, np.nan)
+    along = np.full(n, np.nan)
+    if n:
+        key = rev_of * 100000 + leg0
+        cuts = np.flatnonzero(np.diff(key)) + 1
+        starts = np.concatenate([[0], cuts])
+        ends = np.concatenate([cuts, [n]])
+        for a, b in zip(starts.tolist(), ends.tolist()):
+            rp = plans[int(rev_of[a])]
+            leg = rp.legs[int(leg0[a])]
+            x, al = leg.offsets_np(lat[a:b], lon[a:b])
+            xte[a:b] = x
+            along[a:b] = al
+    length = np.zeros(n)
+    cum_start = np.zeros(n)
+    total = np.zeros(n)
+    speed = np.full(n, np.nan)
+    time_after = np.full(n, np.nan)
+    port = np.full(n, np.inf)
+    stbd = np.full(n, np.inf)
+    for r, rp in enumerate(plans):
+        sel = rev_of == r
+        if not sel.any():
+            continue
+        kk = leg0[sel]
+        length[sel] = rp.length[kk]
+        cum_start[sel] = rp.cum_start[kk]
+        total[sel] = rp.total
+        speed[sel] = rp.speed_kn[kk]
+        time_after[sel] = rp.time_after[kk]
+        port[sel] = rp.port[kk]
+        stbd[sel] = rp.stbd[kk]
+    leg_to_go = length - along
+    route_to_go = leg_to_go + (total - cum_start - length)
+    limit = np.where(xte >= 0.0, stbd, port)
+    inside = np.where(xte >= 0.0, xte <= stbd, -xte <= port)
+    xtl = np.where(np.isfinite(limit), limit, np.nan)
+
+    # ---------------------------------------------------------------- made good
+    prev = _prev_index(good)
+    has_prev = prev >= 0
+    cmg_prev = np.full(n, np.nan)
+    smg_prev = np.full(n, np.nan)
+    dist_prev = np.full(n, np.nan)
+    if has_prev.any():
+        ii = np.flatnonzero(has_prev)
+        pp = prev[ii]
+        d, a1, _ = inverse_np(lat[pp], lon[pp], lat[ii], lon[ii], earth)
+        dtp = t[ii] - t[pp]
+        dist_prev[ii] = d
+        cmg_prev[ii] = np.where(d > 0.0, a1, np.nan)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            smg_prev[ii] = np.where(dtp > 0, d / dtp / KN_MPS, np.nan)
+    dep_fix = None
+    cmg_dep = np.full(n, np.nan)
+    dmg_dep = np.full(n, np.nan)
+    smg_dep = np.full(n, np.nan)
+    smg_win = np.full(n, np.nan)
+    cand = np.flatnonzero(good & (phase != BEFORE_DEPARTURE))
+    if cand.size:
+        dep_fix = int(cand[0])
+        after = np.arange(dep_fix, n)
+        d, a1, _ = inverse_np(lat[dep_fix], lon[dep_fix], lat[after], lon[after], earth)
+        el = t[after] - t[dep_fix]
+        dmg_dep[after] = d
+        cmg_dep[after] = np.where(d > 0.0, a1, np.nan)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            smg_dep[after] = np.where(el > 0, d / el / KN_MPS, np.nan)
+        # window: from the first good fix at or after t - window (not before departure)
+        gi = cand
+        gt = t[gi]
+        j = np.searchsorted(gt, t[after] - window_s, side="left")
+        j = np.minimum(j, gi.size - 1)
+        w0 = gi[j]
+        ok = (w0 < after)
+        if ok.any():
+            aa = after[ok]
+            ww = w0[ok]
+            d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
+            smg_win[aa] = d / (t[aa] - t[ww]) / KN_MPS
+    # ETAs
+    v = speed * KN_MPS
+    tg = np.maximum(leg_to_go, 0.0)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        eta_wp_plan = t + tg / v
+        eta_dest_plan = eta_wp_plan + time_after
+        w_ok = smg_win > MIN_PROGRESS_KN
+        vw = np.where(w_ok, smg_win * KN_MPS, np.nan)
+        eta_wp_smg = t + tg / vw
+        eta_dest_smg = t + np.maximum(route_to_go, 0.0) / vw
+    arrived_mask = phase == ARRIVED
+    for arr in (eta_wp_plan, eta_dest_plan, eta_wp_smg, eta_dest_smg):
+        arr[arrived_mask] = np.nan
+    # delay against the schedule at the same distance along the route
+    delay = np.full(n, np.nan)
+    scheds = []
+    for r, rp in enumerate(plans):
+        given = None
+        if isinstance(schedule, Mapping):
+            given = schedule.get(r)
+        elif schedule is not None and len(plans) == 1:
+            given = schedule
+        sch = _schedule_times(rp, dep_s, given)
+        scheds.append(sch)
+        sel = (rev_of == r) & (phase == UNDER_WAY)
+        fin = np.isfinite(sch)
+        if sel.any() and fin.sum() >= 2:
+            done = np.clip(rp.total - route_to_go[sel], 0.0, rp.total)
+            delay[sel] = t[sel] - np.interp(done, rp.wp_cum[fin], sch[fin])
+    # set and drift
+    cur_ok = (has_prev & good & np.isfinite(f.heading[np.maximum(prev, 0)])
+              & np.isfinite(f.stw_kn[np.maximum(prev, 0)]))
+    cur_ok &= (t - t[np.maximum(prev, 0)] > 0) & (t - t[np.maximum(prev, 0)] <= gap_s)
+    set_deg, drift = _dr_currents(lat, lon, t, f.heading, f.stw_kn, prev, cur_ok, earth)
+
+    def ro(x):
+        x = np.ascontiguousarray(x)
+        x.setflags(write=False)
+        return x
+
+    fr = FixResults(
+        index=ro(order), fix_id=ro(f.fix_id), time_s=ro(t), lat=ro(lat), lon=ro(lon),
+        suspect=ro(suspect), phase=ro(phase), revision=ro(rev_of.astype(np.int16)),
+        leg=ro((leg0 + 1).astype(np.int16)), xte_m=ro(xte), along_m=ro(along),
+        leg_to_go_m=ro(leg_to_go), route_to_go_m=ro(route_to_go), xtl_m=ro(xtl),
+        inside_xtl=ro(inside), dtw_m=ro(dtw), btw=ro(btw), cmg_prev=ro(cmg_prev),
+        smg_prev_kn=ro(smg_prev), dist_prev_m=ro(dist_prev), cmg_dep=ro(cmg_dep),
+        dmg_dep_m=ro(dmg_dep), smg_dep_kn=ro(smg_dep), smg_window_kn=ro(smg_win),
+        eta_wp_plan_s=ro(eta_wp_plan), eta_dest_plan_s=ro(eta_dest_plan),
+        eta_wp_smg_s=ro(eta_wp_smg), eta_dest_smg_s=ro(eta_dest_smg), delay_s=ro(delay),
+        set=ro(set_deg), drift_kn=ro(drift),
+    )
+
+    # ---------------------------------------------------------------- passages
+    passages = []
+    prev_pass = -1
+    for r, kk, i, how, dist in passage_raw:
+        rp = plans[r]
+        x_in, _ = rp.legs[kk].offset(float(lat[i]), float(lon[i]))
+        wp = kk + 1
+        planned = float(scheds[r][wp]) if np.isfinite(scheds[r][wp]) else None
+        closest = _closest_approach(fr, can_pass, prev_pass, i, rp.wp_lat[wp], rp.wp_lon[wp],
+                                    dist, earth)
+        passages.append(Passage(
+            revision=r, waypoint=wp + 1, name=rp.names[wp], time_s=float(t[i]), how=how,
+            xte_m=float(x_in), distance_m=dist, closest_m=closest, lat=float(lat[i]),
+            lon=float(lon[i]), planned_s=planned,
+            delay_s=None if planned is None else float(t[i]) - planned,
+            skipped=bool(closest > rp.skip[wp]), fix=i,
+        ))
+        prev_pass = i
+
+    episodes = _episodes(fr, can_count)
+    legs = _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth,
+                      revisions)
+    gaps = _gaps(fr, gap_s, earth)
+    from passagelog.review.noon import noon_figures
+
+    noon = noon_figures(fr, plans, clocks, good, dep_fix, dep_s, arr_s, gap_s, earth)
+    suspects = tuple(
+        SuspectFix(fix=int(i), time_s=float(t[i]), lat=float(lat[i]), lon=float(lon[i]),
+                   implied_speed_kn=float(implied[i]) if np.isfinite(implied[i]) else None,
+                   reason=str(reason[i]), revision=int(rev_of[i]), leg=int(leg0[i]) + 1,
+                   fix_id=int(f.fix_id[i]))
+        for i in np.flatnonzero(suspect)
+    )
+    settings = Settings(window_s=float(window_s), gap_s=float(gap_s),
+                        include_suspect=include_suspect, max_speed_kn=max_speed_kn,
+                        departure_s=dep_s, arrival_s=arr_s, earth=earth.name)
+    return Review(
+        fixes=fr, passages=tuple(passages), episodes=tuple(episodes), legs=tuple(legs),
+        noon=tuple(noon), gaps=tuple(gaps), suspects=suspects,
+        routes=tuple(r.route for r in revisions),
+        revision_from_s=tuple(r.from_s for r in revisions), departure_s=dep_s,
+        arrival_s=arr_s, departure_fix=dep_fix, settings=settings,
+        invalid_fixes=int((~valid).sum()),
+    )
+
+
+def _enter_revision(old: _RoutePlan, wp_index: int, new: _RoutePlan, earth: Earth) -> int:
+    """The leg (0-based) of the new route to go on with, after waypoint ``wp_index`` of the
+    old route was the last passed (or the start)."""
+    w_lat, w_lon = old.wp_lat[wp_index], old.wp_lon[wp_index]
+    name = old.names[wp_index]
+    best = None
+    for j in range(len(new.names)):
+        d, _, _ = inverse(w_lat, w_lon, new.wp_lat[j], new.wp_lon[j], earth)
+        if d <= SAME_WAYPOINT_M:
+            score = (0 if new.names[j] == name else 1, d)
+            if best is None or score < best[0]:
+                best = (score, j)
+    if best is None:
+        return 0
+    return min(best[1], new.n_legs - 1)
+
+
+def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
+                      w_lat: float, w_lon: float, dist: float, earth: Earth) -> float:
+    """Closest approach of the track to a waypoint passed at fix ``i``: the least distance
+    of the fixes since the previous passage (fix ``since``) and of the geodesic from the last
+    fix before ``i`` to fix ``i`` (the track between two fixes taken as a geodesic)."""
+    best = dist
+    lo = max(since, 0)
+    sel = np.flatnonzero(can_pass[lo:i]) + lo
+    if sel.size:
+        best = min(best, float(np.nanmin(fr.dtw_m[sel])))
+        j = int(sel[-1])
+        try:
+            from passagelog.nav.legs import make_leg
+
+            seg = make_leg(float(fr.lat[j]), float(fr.lon[j]), float(fr.lat[i]),
+                           float(fr.lon[i]), "great-circle", earth=earth)
+            x, a = seg.offset(float(w_lat), float(w_lon))
+        except Exception:  # a zero-length step or a foot that is not defined: ends only
+            return best
+        if 0.0 <= a <= seg.distance_m:
+            best = min(best, abs(float(x)))
+    return best
+
+
+def _runs(mask: np.ndarray) -> list[tuple[int, int]]:
+    """(start, end) of the runs of True in ``mask``, end exclusive."""
+    if mask.size == 0:
+        return []
+    m = np.concatenate([[False], mask, [False]]).astype(np.int8)
+    d = np.diff(m)
+    return list(zip(np.flatnonzero(d == 1).tolist(), np.flatnonzero(d == -1).tolist()))
+
+
+def _episodes(fr: FixResults, can_count: np.ndarray) -> list[Episode]:
+    """Spells outside the limit, per leg and side, over the fixes that count."""
+    rows = np.flatnonzero(can_count)
+    if rows.size == 0:
+        return []
+    x = fr.xte_m[rows]
+    side = np.where(fr.inside_xtl[rows], 0, np.where(x > 0, 1, -1)).astype(np.int64)
+    key = (fr.revision[rows].astype(np.int64) * 100000 + fr.leg[rows]) * 3 + side + 1
+    out = []
+    outside = side != 0
+    brk = np.concatenate([[True], key[1:] != key[:-1]])
+    run_id = np.cumsum(brk)
+    for a, b in _runs(outside):
+        # split further where the key (leg or side) changes inside the run
+        ids = run_id[a:b]
+        cut = np.flatnonzero(np.diff(ids)) + 1
+        for s, e in zip(np.concatenate([[0], cut]).tolist(), np.concatenate([cut, [b - a]])
+                        .tolist()):
+            s0, e0 = a + s, a + e  # positions in rows
+            first, last = int(rows[s0]), int(rows[e0 - 1])
+            end_row = int(rows[e0]) if e0 < rows.size else last
+            xs = np.abs(x[s0:e0])
+            sd = int(side[s0])
+            out.append(Episode(
+                revision=int(fr.revision[first]), leg=int(fr.leg[first]),
+                side="starboard" if sd > 0 else "port", start_s=float(fr.time_s[first]),
+                end_s=float(fr.time_s[end_row]), max_abs_xte_m=float(xs.max()),
+                limit_m=float(fr.xtl_m[first]), fixes=e0 - s0, first_fix=first,
+                last_fix=last,
+            ))
+    return out
+
+
+def _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth, revisions):
+    t = fr.time_s
+    # passage times per (rev, waypoint index)
+    passed_at = {(r, kk + 1): int(i) for r, kk, i, _, _ in passage_raw}
+    used = sorted(set(zip(fr.revision[can_count].tolist(), (fr.leg[can_count] - 1).tolist()))
+                  | {(r, kk) for r, kk, _, _, _ in passage_raw})
+    out = []
+    for r, kk in used:
+        rp = plans[r]
+        sel = np.flatnonzero(can_count & (fr.revision == r) & (fr.leg == kk + 1))
+        plan = rp.route.legs[kk]
+        # start: passage of the leg's first waypoint; else, on the first leg sailed under a
+        # revision, the departure (first revision) or the revision's start; else its first fix
+        first_leg = min(k2 for r2, k2 in used if r2 == r) == kk
+        if (r, kk) in passed_at:
+            start = float(t[passed_at[(r, kk)]])
+        elif sel.size:
+            start = float(t[sel[0]])
+            origin = dep_s if r == 0 else revisions[r].from_s
+            if first_leg and origin is not None and math.isfinite(origin) and origin <= start:
+                start = origin
+        else:
+            start = None
+        completed = (r, kk + 1) in passed_at
+        if completed:
+            end = float(t[passed_at[(r, kk + 1)]])
+        elif sel.size:
+            end = float(t[sel[-1]])
+        else:
+            end = None
+        run = float(np.nansum(fr.dist_prev_m[sel])) if sel.size else 0.0
+        if completed:
+            i_end = passed_at[(r, kk + 1)]
+            if np.isfinite(fr.dist_prev_m[i_end]):
+                run += float(fr.dist_prev_m[i_end])
+        dmg = smg = None
+        if sel.size >= 2:
+            last = passed_at[(r, kk + 1)] if completed else int(sel[-1])
+            d, _, _ = inverse(float(fr.lat[sel[0]]), float(fr.lon[sel[0]]),
+                              float(fr.lat[last]), float(fr.lon[last]), earth)
+            el = float(t[last] - t[sel[0]])
+            dmg = d
+            smg = d / el / KN_MPS if el > 0 else None
+        x = fr.xte_m[sel]
+        ax = np.abs(x)
+        n_out = int((~fr.inside_xtl[sel]).sum())
+        t_out = sum(e.duration_s for e in episodes if e.revision == r and e.leg == kk + 1)
+        cur = sel[np.isfinite(fr.drift_kn[sel])]
+        set_deg = drift = None
+        if cur.size:
+            s_rad = np.radians(fr.set[cur])
+            dk = fr.drift_kn[cur]
+            east = float(np.mean(np.where(dk > 0, dk * np.sin(s_rad), 0.0)))
+            north = float(np.mean(np.where(dk > 0, dk * np.cos(s_rad), 0.0)))
+            drift = math.hypot(east, north)
+            set_deg = math.degrees(math.atan2(east, north)) % 360.0 if drift > 0 else None
+        speed = rp.speed_kn[kk]
+        out.append(LegStats(
+            revision=r, leg=kk + 1, from_wp=rp.names[kk], to_wp=rp.names[kk + 1],
+            sailing=plan.sailing, planned_distance_m=float(rp.length[kk]),
+            planned_speed_kn=float(speed) if np.isfinite(speed) else None,
+            planned_time_s=float(rp.leg_time[kk]) if np.isfinite(rp.leg_time[kk]) else None,
+            start_s=start, end_s=end, completed=completed, run_m=run, dmg_m=dmg, smg_kn=smg,
+            fixes=int(sel.size),
+            max_abs_xte_m=float(ax.max()) if sel.size else None,
+            mean_xte_m=float(x.mean()) if sel.size else None,
+            rms_xte_m=float(np.sqrt(np.mean(x * x))) if sel.size else None,
+            fixes_outside=n_out, time_outside_s=float(t_out), set=set_deg, drift_kn=drift,
+            set_fixes=int(cur.size),
+        ))
+    return out
+
+
+def _gaps(fr: FixResults, gap_s: float, earth: Earth) -> list[Gap]:
+    t = fr.time_s
+    if t.size < 2:
+        return []
+    dt = np.diff(t)
+    out = []
+    for i in np.flatnonzero(dt > gap_s).tolist():
+        d, _, _ = inverse(float(fr.lat[i]), float(fr.lon[i]), float(fr.lat[i + 1]),
+                          float(fr.lon[i + 1]), earth)
+        out.append(Gap(
+            start_s=float(t[i]), end_s=float(t[i + 1]), from_lat=float(fr.lat[i]),
+            from_lon=float(fr.lon[i]), to_lat=float(fr.lat[i + 1]),
+            to_lon=float(fr.lon[i + 1]), distance_m=float(d), revision=int(fr.revision[i]),
+            leg=int(fr.leg[i]), first_fix=i,
+        ))
+    return out
