@@ -19,6 +19,7 @@ from passagelog import __version__
 COMMANDS: dict[str, str] = {
     "calc": "calc:calc",
     "demo": "demo:demo",
+    "feed": "feed:feed",
     "report": "report:report",
 }
 
