@@ -2,8 +2,13 @@
 
 from __future__ import annotations
 
+import os
+import signal
 import socket
+import subprocess
+import sys
 import threading
+import time
 from datetime import datetime, timedelta, timezone
 from functools import reduce
 
@@ -157,3 +162,91 @@ def test_loopback_udp_sender_to_logbook_writer():
     assert stats.fixes_seen == 8
     assert [f.time_utc.minute for f in logged] == [0, 2, 4, 6]
     assert stats.summary.lines_rejected == 1
+
+
+# --- passagelog feed as a user runs it: a real process, a loopback UDP sender, Ctrl-C ---
+
+
+@pytest.fixture
+def logbook(tmp_path):
+    pytest.importorskip("passagelog.store.logbook")
+    from passagelog.model import Voyage
+    from passagelog.store import Logbook
+
+    path = tmp_path / "feed.sqlite"
+    book = Logbook.open(path)
+    book.add_voyage(Voyage("Live", departure_utc=datetime(2026, 5, 1, tzinfo=timezone.utc)))
+    book.close()
+    return path
+
+
+def run(args, db, **kw):
+    env = dict(os.environ, PASSAGELOG_DB=str(db))
+    return subprocess.Popen([sys.executable, "-m", "passagelog", "feed", *args],
+                            env=env, stdout=subprocess.PIPE, stderr=subprocess.PIPE,
+                            text=True, **kw)
+
+
+def free_udp_port() -> int:
+    s = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
+    s.bind(("127.0.0.1", 0))
+    port = s.getsockname()[1]
+    s.close()
+    return port
+
+
+def test_udp_feed_logs_fixes_and_ctrl_c_exits_130_with_a_summary(logbook):
+    from passagelog.store import Logbook
+
+    port = free_udp_port()
+    proc = run(["--udp", f"127.0.0.1:{port}", "--every", "2", "--voyage", "Live"], logbook,
+               stdin=subprocess.DEVNULL)
+    try:
+        sender = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
+        lines = track(7)
+        deadline = time.monotonic() + 10.0
+        book = Logbook.open(logbook)
+        # send the first two until the first fix shows in the logbook (the process needs a
+        # moment to bind; repeats of an epoch already seen are dropped and counted)
+        while time.monotonic() < deadline:
+            for line in lines[:2]:
+                sender.sendto(line.encode(), ("127.0.0.1", port))
+            time.sleep(0.1)
+            if book.latest_fix("Live") is not None:
+                break
+        for line in lines[2:] + [b"\x00garbage\r\n".decode("latin-1"), lines[6][:-4] + "00\r\n"]:
+            sender.sendto(line.encode("latin-1"), ("127.0.0.1", port))
+        time.sleep(0.5)
+        sender.close()
+    finally:
+        proc.send_signal(signal.SIGINT)
+        out, err = proc.communicate(timeout=10)
+    assert proc.returncode == 130, err
+    assert out == ""  # stdout carries data only; this command has none
+    assert "fixes logged:" in err and "checksum mismatch" in err
+    fixes = book.fixes("Live")
+    book.close()
+    assert [f.time_utc.minute for f in fixes] == [0, 2, 4]  # minute 6 still open at Ctrl-C
+    assert all(f.remarks.startswith("feed: ") for f in fixes)
+
+
+def test_stdin_feed_ends_with_the_stream(logbook):
+    from passagelog.store import Logbook
+
+    proc = run(["--stdin", "--every", "3", "--voyage", "Live", "-q"], logbook,
+               stdin=subprocess.PIPE)
+    out, err = proc.communicate("".join(track(7)) + "junk\n", timeout=20)
+    assert proc.returncode == 0, err
+    assert "fixes decoded: 7, fixes logged: 3" in err
+    book = Logbook.open(logbook)
+    assert [f.time_utc.minute for f in book.fixes("Live")] == [0, 3, 6]
+    book.close()
+
+
+def test_unknown_voyage_and_two_sources_are_refused(logbook):
+    proc = run(["--stdin", "--voyage", "Nope"], logbook, stdin=subprocess.PIPE)
+    _out, err = proc.communicate("", timeout=20)
+    assert proc.returncode == 1 and "Nope" in err
+    proc = run(["--stdin", "--udp", "10110", "--voyage", "Live"], logbook, stdin=subprocess.PIPE)
+    _out, err = proc.communicate("", timeout=20)
+    assert proc.returncode == 2 and "give one source" in err
