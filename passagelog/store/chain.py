@@ -11,7 +11,7 @@ in :data:`CHAINS`, exactly as SQLite returns them:
 * fixes (many, so a compact binary form, see :func:`fix_bytes`): the numbers packed
   little-endian with ``struct`` format ``<qqddddqddddqqd7i`` -- fix_id, voyage_id, time_s, lat,
   lon, hdop, satellites, cog, sog_kn, heading, stw_kn, supersedes, suspect, implied_speed_kn
-  (a NULL real is NaN, a NULL integer -1), then the lengths in characters of the seven text
+  (a NULL real is NaN, a NULL integer -1, -0.0 is written as 0.0), then the lengths in characters of the seven text
   columns time_utc, method, fix_mode, remarks, source, reason, recorded_utc (-1 for NULL),
   then the UTF-8 bytes of those texts one after another;
 * every other record: each column written as Python's ``repr()`` (``None``; integers in
@@ -72,11 +72,13 @@ def fix_bytes(row: tuple) -> bytes:
     """Canonical bytes of a fix row (columns as in ``CHAINS["fix"]``)."""
     (fid, vid, tu, ts, lat, lon, method, hdop, sats, mode, cog, sog, hdg, stw, remarks, source,
      sup, reason, rec, suspect, implied) = row
+    # "+ 0.0" turns -0.0 into 0.0, as SQLite stores it
     return _FIX_STRUCT.pack(
-        fid, vid, ts, lat, lon, _NAN if hdop is None else hdop, -1 if sats is None else sats,
-        _NAN if cog is None else cog, _NAN if sog is None else sog,
-        _NAN if hdg is None else hdg, _NAN if stw is None else stw,
-        -1 if sup is None else sup, suspect, _NAN if implied is None else implied,
+        fid, vid, ts + 0.0, lat + 0.0, lon + 0.0, _NAN if hdop is None else hdop + 0.0,
+        -1 if sats is None else sats, _NAN if cog is None else cog + 0.0,
+        _NAN if sog is None else sog + 0.0, _NAN if hdg is None else hdg + 0.0,
+        _NAN if stw is None else stw + 0.0, -1 if sup is None else sup, suspect,
+        _NAN if implied is None else implied + 0.0,
         len(tu), len(method), -1 if mode is None else len(mode), len(remarks),
         -1 if source is None else len(source), -1 if reason is None else len(reason), len(rec),
     ) + (tu + method + (mode or "") + remarks + (source or "") + (reason or "") + rec).encode()

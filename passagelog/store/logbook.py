@@ -62,7 +62,8 @@ def _from_iso(text: str | None) -> datetime | None:
 
 
 def _f(value: Any) -> float | None:
-    return None if value is None else float(value)
+    """A real for a REAL column; -0.0 becomes 0.0 (SQLite stores it so; the hash must agree)."""
+    return None if value is None else float(value) + 0.0
 
 
 def _extras_json(extras: tuple[tuple[str, str], ...]) -> str:
@@ -516,7 +517,7 @@ class Logbook:
         for i, wp in enumerate(route.waypoints):
             leg = route.legs[i - 1] if i else None
             points.append((
-                rid, i, wp.name, float(wp.lat), float(wp.lon), _f(wp.arrival_radius_m),
+                rid, i, wp.name, _f(wp.lat), _f(wp.lon), _f(wp.arrival_radius_m),
                 wp.rtz_id, wp.revision, _extras_json(wp.extras),
                 leg.sailing if leg else None, _f(leg.speed_kn) if leg else None,
                 _f(leg.xtl_port_m) if leg else None, _f(leg.xtl_stbd_m) if leg else None,
@@ -936,7 +937,7 @@ class Logbook:
         if not isinstance(e, LogEntry):
             raise InputError(f"a log entry is needed, not {e!r}")
         return self._append("entry", (
-            vid, _iso(e.time_utc), e.time_utc.timestamp(), e.kind, e.text, e.zd_minutes,
+            vid, _iso(e.time_utc), e.time_utc.timestamp() + 0.0, e.kind, e.text, e.zd_minutes,
             _f(e.lat), _f(e.lon), supersedes, reason, self._now()))
 
     def _entry_of(self, row: tuple) -> LogEntry:
