@@ -314,30 +314,53 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     suspect = f.suspect.copy()
     reason = np.where(suspect, "logbook", "")
     implied = np.full(n, np.nan)
+    step_d = np.full(n, np.nan)  # geodesic from the fix before, for every fix
+    step_az = np.full(n, np.nan)
     if n > 1:
-        # the speed implied from the previous fix (all fixes; the logbook's own check)
-        d, _, _ = inverse_np(lat[:-1], lon[:-1], lat[1:], lon[1:], earth)
+        d, az, _ = inverse_np(lat[:-1], lon[:-1], lat[1:], lon[1:], earth)
+        step_d[1:] = d
+        step_az[1:] = az
         dt = np.diff(t)
         with np.errstate(divide="ignore", invalid="ignore"):
             implied[1:] = np.where(dt > 0, d / dt / KN_MPS, np.where(d > 0, np.inf, 0.0))
     if max_speed_kn is not None and n > 1:
-        # against the previous good fix: sequential, as one wild fix must not condemn the next
-        last = 0
-        for i in range(1, n):
+        # against the previous good fix: sequential (one wild fix must not condemn the next
+        # one), but only where something happens: at fast steps and after flagged fixes
+        events = np.flatnonzero((implied > max_speed_kn) | np.concatenate([[False],
+                                                                            suspect[:-1]]))
+        i = int(events[0]) if events.size else n
+        last = i - 1
+        while last >= 0 and suspect[last]:
+            last -= 1
+        while i < n:
             if suspect[i]:
+                i += 1
                 continue
-            if last != i - 1:
-                dd, _, _ = inverse(lat[last], lon[last], lat[i], lon[i], earth)
+            if last < 0:
+                sp = 0.0  # the first good fix has nothing to be measured from
+            elif last == i - 1:
+                sp = implied[i]
+            else:
+                dd, _, _ = inverse(float(lat[last]), float(lon[last]), float(lat[i]),
+                                   float(lon[i]), earth)
                 dti = t[i] - t[last]
                 sp = dd / dti / KN_MPS if dti > 0 else (math.inf if dd > 0 else 0.0)
                 implied[i] = sp
-            else:
-                sp = implied[i]
             if sp > max_speed_kn:
                 suspect[i] = True
                 reason[i] = "speed"
-            else:
-                last = i
+                i += 1
+                continue
+            last = i
+            pos = int(np.searchsorted(events, i, side="right"))
+            if pos >= events.size:
+                break
+            nxt = int(events[pos])
+            if nxt > i + 1:
+                last = nxt - 1
+                while last > i and suspect[last]:
+                    last -= 1
+            i = nxt
     good = ~suspect | include_suspect
 
     # ---------------------------------------------------------------- departure, arrival
@@ -484,7 +507,14 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     if has_prev.any():
         ii = np.flatnonzero(has_prev)
         pp = prev[ii]
-        d, a1, _ = inverse_np(lat[pp], lon[pp], lat[ii], lon[ii], earth)
+        d = step_d[ii]
+        a1 = step_az[ii]
+        far = pp != ii - 1  # the fix before was left out: measure from the last good one
+        if far.any():
+            d = d.copy()
+            a1 = a1.copy()
+            d[far], a1[far], _ = inverse_np(lat[pp[far]], lon[pp[far]], lat[ii[far]],
+                                            lon[ii[far]], earth)
         dtp = t[ii] - t[pp]
         dist_prev[ii] = d
         cmg_prev[ii] = np.where(d > 0.0, a1, np.nan)
