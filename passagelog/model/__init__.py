@@ -89,6 +89,11 @@ def check_zd(thing: str, zd_minutes: int) -> None:
         )
 
 
+def _one(index: Any) -> Any:
+    """A 0-based index as the 1-based number users see."""
+    return index + 1 if isinstance(index, int) and not isinstance(index, bool) else repr(index)
+
+
 def utc(dt: datetime) -> datetime:
     """``dt`` as an aware UTC datetime (naive input is refused)."""
     if dt.tzinfo is None:
@@ -224,6 +229,107 @@ class Route:
 
     def with_changes(self, **changes: Any) -> "Route":
         return replace(self, **changes)
+
+    # Plan editing: each operation returns a new Route (revision and note cleared); indexes
+    # are 0-based here (the CLI shows them 1-based). Schedule items follow their waypoint.
+
+    def _check_index(self, index: int, *, allow_end: bool = False) -> None:
+        top = len(self.waypoints) if allow_end else len(self.waypoints) - 1
+        if isinstance(index, bool) or not isinstance(index, int) or not 0 <= index <= top:
+            raise InputError(f"route {self.name!r} waypoint number {_one(index)} does not "
+                             f"exist; it has waypoints 1 to {len(self.waypoints)}")
+
+    def _edited(self, waypoints, legs, schedule) -> "Route":
+        return replace(self, waypoints=tuple(waypoints), legs=tuple(legs),
+                       schedule=tuple(schedule), revision=None, note="")
+
+    def insert_waypoint(self, index: int, waypoint: Waypoint, leg: LegPlan | None = None,
+                        ) -> "Route":
+        """``waypoint`` inserted so that it becomes ``waypoints[index]`` (``index`` equal to
+        the count appends). ``leg`` describes the leg that ends at it; by default the leg
+        it splits (or, at either end, the neighbouring leg) is copied."""
+        self._check_index(index, allow_end=True)
+        wps = list(self.waypoints)
+        legs = list(self.legs)
+        if index == 0:  # new start: the leg from it ends at the old first waypoint
+            legs.insert(0, leg or legs[0])
+        else:
+            legs.insert(index - 1, leg or legs[min(index - 1, len(legs) - 1)])
+        wps.insert(index, waypoint)
+        sched = [replace(s, waypoint_index=s.waypoint_index + (s.waypoint_index >= index))
+                 for s in self.schedule]
+        return self._edited(wps, legs, sched)
+
+    def add_waypoint(self, waypoint: Waypoint, leg: LegPlan | None = None) -> "Route":
+        """``waypoint`` appended at the end (``leg``: the leg ending at it)."""
+        return self.insert_waypoint(len(self.waypoints), waypoint, leg)
+
+    def move_waypoint(self, index: int, lat: float, lon: float) -> "Route":
+        """Waypoint ``index`` moved to a new position (name, radius and legs kept)."""
+        self._check_index(index)
+        wps = list(self.waypoints)
+        wps[index] = replace(wps[index], lat=lat, lon=lon)
+        return self._edited(wps, self.legs, self.schedule)
+
+    def replace_waypoint(self, index: int, waypoint: Waypoint) -> "Route":
+        """Waypoint ``index`` replaced (rename, new arrival radius, ...)."""
+        self._check_index(index)
+        wps = list(self.waypoints)
+        wps[index] = waypoint
+        return self._edited(wps, self.legs, self.schedule)
+
+    def delete_waypoint(self, index: int) -> "Route":
+        """Waypoint ``index`` removed. Removing an inner waypoint joins its two legs into one
+        that keeps the attributes of the leg that ended at the next waypoint; removing an end
+        drops the end leg. Schedule items at the waypoint go with it."""
+        self._check_index(index)
+        if len(self.waypoints) <= 2:
+            raise InputError(f"route {self.name!r} has only 2 waypoints; a route needs at "
+                             "least 2, so none can be deleted")
+        wps = list(self.waypoints)
+        legs = list(self.legs)
+        del wps[index]
+        del legs[index - 1 if index else 0]  # an inner waypoint keeps the leg after it
+        sched = [replace(s, waypoint_index=s.waypoint_index - (s.waypoint_index > index))
+                 for s in self.schedule if s.waypoint_index != index]
+        return self._edited(wps, legs, sched)
+
+    def set_leg(self, leg_index: int, **changes: Any) -> "Route":
+        """Leg ``leg_index`` (0-based; leg k runs from waypoint k to k+1) with ``changes``
+        (any LegPlan field: sailing, speed_kn, xtl_port_m, xtl_stbd_m, turn_radius_m, ...)."""
+        if isinstance(leg_index, bool) or not isinstance(leg_index, int) or not (
+                0 <= leg_index < len(self.legs)):
+            raise InputError(f"route {self.name!r} leg {_one(leg_index)} does not exist; it "
+                             f"has legs 1 to {len(self.legs)}")
+        legs = list(self.legs)
+        try:
+            legs[leg_index] = replace(legs[leg_index], **changes)
+        except TypeError as exc:
+            raise InputError(f"leg attribute not known: {exc}") from None
+        return self._edited(self.waypoints, legs, self.schedule)
+
+    def reversed(self, name: str | None = None) -> "Route":
+        """The route sailed the other way: waypoints in reverse order, each leg kept with its
+        segment, its port and starboard limits swapped (the sides change with the direction),
+        and each turn radius kept with its waypoint. The schedule is dropped (its times do
+        not apply the other way)."""
+        n = len(self.waypoints)
+        wps = self.waypoints[::-1]
+        legs = []
+        for j in range(1, n):
+            seg = self.legs[n - j - 1]  # the old leg from waypoint n-j-1 to n-j
+            at = n - j - 1  # the waypoint the new leg j ends at
+            turn = self.legs[at - 1].turn_radius_m if at >= 1 else None
+            legs.append(replace(seg, xtl_port_m=seg.xtl_stbd_m, xtl_stbd_m=seg.xtl_port_m,
+                                turn_radius_m=turn))
+        out = self._edited(wps, legs, ())
+        return replace(out, name=name) if name else out
+
+    def copy(self, name: str) -> "Route":
+        """The same route under another name."""
+        if not isinstance(name, str) or not name.strip():
+            raise InputError("route name must not be empty")
+        return replace(self, name=name, revision=None, note="")
 
 
 @dataclass(frozen=True)
