@@ -11,6 +11,8 @@ CALC_COMMANDS: dict[str, str] = {
     # legs and offsets (scripting contract: docs/cli.md)
     "leg": "calc_legs:leg",
     "offset": "calc_legs:offset",
+    "track": "calc_legs:track",
+    "composite": "calc_legs:composite",
     # notations, units and zone time
     "position": "calc_misc:position",
     "convert": "calc_misc:convert",

