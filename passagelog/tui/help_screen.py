@@ -48,8 +48,10 @@ Positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
 `47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in knots.
 Each row's leg settings describe the leg that **ends** at that waypoint.
 
-**Log**: Ctrl+S logs the fix in the form; Ctrl+E adds the log entry; in the fix list,
-Enter opens the correction dialog (the original stays in the record, struck through).
+**Log**: Ctrl+S logs the fix in the form (on the Entries tab: adds the log entry); in the
+fix list, Enter opens the correction dialog (the original stays in the record, struck
+through). Times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
+`2026-05-02T12:50 ZD-1`.
 
 **Watch**: follows new fixes by itself. **Review**: Ctrl+L recomputes.
 """

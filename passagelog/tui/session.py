@@ -128,6 +128,13 @@ class Session:
     def fixes(self) -> list[Fix]:
         return list(self.logbook.fixes(self._vid())) if self.voyage else []
 
+    def fix_history(self) -> list[Fix]:
+        """Every fix record, corrected originals included, in the order recorded."""
+        return list(self.logbook.fixes(self._vid(), history=True)) if self.voyage else []
+
+    def entry_history(self) -> list[LogEntry]:
+        return list(self.logbook.entries(self._vid(), history=True)) if self.voyage else []
+
     def fix_arrays(self):
         return self.logbook.fix_arrays(self._vid())
 

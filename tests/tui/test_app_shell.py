@@ -52,10 +52,10 @@ async def test_insert_a_waypoint_edit_it_and_save_a_revision(session):
         assert app.focused is name
         name.value = ""
         await pilot.press(*"Lizard")
-        await pilot.press("tab")  # position field: type a position in another notation
+        await pilot.press("tab")  # position field: a position in another notation
         pos = app.query_one("#plan-pos")
-        pos.value = ""
-        await pilot.press(*"49 45.5N 6 30W")
+        assert app.focused is pos
+        pos.value = "49 45.5N 6 30W"
         await pilot.pause()
         assert plan.rows[1].name == "Lizard"
         assert abs(plan.rows[1].lat - (49 + 45.5 / 60)) < 1e-12
