@@ -334,3 +334,134 @@ def test_true_magnetic_compass_round_trip(t, var, dev):
     assert angle_diff(back, t) < 1e-9
     # the textual forms round-trip through the parser as well
     assert angle_diff(true_to_magnetic(t, format_ew(var, 6)), m) < 1e-5
+
+
+# ---------------------------------------------------------------------------------------------
+# dead reckoning on the ellipsoid (a steady course is a rhumb line)
+
+import shutil  # noqa: E402
+import subprocess  # noqa: E402
+
+from passagelog.nav.earth import SPHERE_NM  # noqa: E402
+from passagelog.nav.rhumb import rhumb_direct, rhumb_inverse  # noqa: E402
+from passagelog.nav.triangles import (  # noqa: E402
+    dead_reckoning,
+    estimated_position,
+    set_and_drift,
+)
+
+NM = 1852.0
+KN = NM / 3600.0
+needs_rhumbsolve = pytest.mark.skipif(shutil.which("RhumbSolve") is None,
+                                      reason="RhumbSolve (geographiclib-tools) not installed")
+
+
+def rhumbsolve_direct(lat, lon, course, s):
+    """GeographicLib's C++ RhumbSolve (Debian geographiclib-tools): the outside reference."""
+    out = subprocess.run(["RhumbSolve", "-p", "9"], input=f"{lat} {lon} {course} {s}\n",
+                         capture_output=True, text=True, check=True).stdout.split()
+    return float(out[0]), float(out[1])
+
+
+def metres_between(lat1, lon1, lat2, lon2):
+    from geographiclib.geodesic import Geodesic
+
+    return Geodesic.WGS84.Inverse(lat1, lon1, lat2, lon2)["s12"]
+
+
+@pytest.mark.geodsolve
+@needs_rhumbsolve
+def test_dr_against_rhumbsolve():
+    # 2 h 30 min at 12 kn steering 045° from 50°N 4°W: 30 NM along the rhumb line
+    dr = dead_reckoning(50.0, -4.0, 45.0, 12.0, 2.5 * 3600.0)
+    assert dr.distance_m == pytest.approx(30 * NM, abs=1e-9)
+    lat, lon = rhumbsolve_direct(50.0, -4.0, 45.0, 30 * NM)
+    assert metres_between(dr.lat, dr.lon, lat, lon) < 1e-3
+
+
+@pytest.mark.geodsolve
+@needs_rhumbsolve
+def test_ep_against_rhumbsolve():
+    # steering 100° at 15 kn for 3 h, current setting 200° at 2.5 kn, 3° leeway to port
+    ep = estimated_position(20.0, -60.0, 100.0, 15.0, 3 * 3600.0, 200.0, 2.5, leeway_deg=-3.0)
+    g = vec(97.0, 15.0) + vec(200.0, 2.5)             # water track 097° plus the current
+    assert ep.course_made_good == pytest.approx(direction_of(g), abs=1e-9)
+    assert ep.speed_made_good_kn == pytest.approx(abs(g), rel=1e-12)
+    assert ep.water_track == pytest.approx(97.0)
+    lat, lon = rhumbsolve_direct(20.0, -60.0, direction_of(g), abs(g) * 3 * NM)
+    assert metres_between(ep.lat, ep.lon, lat, lon) < 1e-3
+    dlat, dlon = rhumbsolve_direct(20.0, -60.0, 100.0, 45 * NM)
+    assert metres_between(ep.dr_lat, ep.dr_lon, dlat, dlon) < 1e-3
+
+
+def test_dr_parallel_sailing_on_the_one_minute_sphere():
+    # parallel sailing (Bowditch, NGA Pub. 9, ch. 24 "Sailings"): DLo = departure * sec(L);
+    # on the sphere where 1' = 1 NM, 60 NM due east at 60°N is 2° of longitude exactly.
+    dr = dead_reckoning(60.0, 10.0, 90.0, 10.0, 6 * 3600.0, earth=SPHERE_NM)
+    assert dr.lat == pytest.approx(60.0, abs=1e-12)
+    assert dr.lon == pytest.approx(12.0, abs=1e-12)
+    # and 60 NM due north is 1° of latitude exactly
+    dr = dead_reckoning(10.0, 10.0, 0.0, 20.0, 3 * 3600.0, earth=SPHERE_NM)
+    assert (dr.lat, dr.lon) == pytest.approx((11.0, 10.0), abs=1e-12)
+
+
+def test_set_and_drift_from_dr_and_fix():
+    # The drift is the distance DR -> fix over the hours since the last fix (Bowditch, NGA
+    # Pub. 9, ch. 7; the plotting example at home.teleport.com/~forsberg/setdrift.html:
+    # 4.2 NM in 2 h is a drift of 2.1 kn); the set is the direction DR -> fix.
+    dr = (41.2, -70.5)
+    fix = rhumb_direct(*dr, 30.0, 4.2 * NM, SPHERE_NM)
+    sd = set_and_drift(*dr, *fix, 2 * 3600.0, earth=SPHERE_NM)
+    assert sd.set == pytest.approx(30.0, abs=1e-9)
+    assert sd.drift_kn == pytest.approx(2.1, abs=1e-12)
+    assert sd.distance_m == pytest.approx(4.2 * NM, abs=1e-6)
+    # the fix on the DR: no current
+    assert set_and_drift(*dr, *dr, 3600.0) == type(sd)(None, 0.0, 0.0, 3600.0)
+    with pytest.raises(InputError, match="elapsed time"):
+        set_and_drift(*dr, *fix, 0.0)
+
+
+@settings(max_examples=150, deadline=None)
+@given(lat=st.floats(-60, 60), lon=st.floats(-180, 180, exclude_max=True),
+       course=st.floats(0, 360, exclude_max=True), stw=st.floats(3, 20),
+       set_=st.floats(0, 360, exclude_max=True), drift=st.floats(0, 4),
+       hours=st.floats(0.25, 6))
+def test_set_and_drift_recovers_the_current(lat, lon, course, stw, set_, drift, hours):
+    # The DR and the EP for the same time differ by the current's run, so the set and drift
+    # found from them is the current put in. Velocities add in the plane but positions move
+    # on the ellipsoid, so they agree to second order: within
+    # 0.5 * run * current's run / R * (1 + |tan lat|) (a bound of ours, worst seen 0.32).
+    t = hours * 3600.0
+    ep = estimated_position(lat, lon, course, stw, t, set_, drift)
+    sd = set_and_drift(ep.dr_lat, ep.dr_lon, ep.lat, ep.lon, t)
+    run_m, current_m = stw * KN * t, drift * KN * t
+    bound = 0.5 * run_m * current_m / 6.371e6 * (1 + abs(math.tan(math.radians(lat)))) + 1e-6
+    assert abs(sd.drift_kn - drift) * KN * t <= bound
+    if sd.set is not None and drift > 0:
+        assert current_m * math.radians(angle_diff(sd.set, set_)) <= 1.01 * bound + 1e-6
+    q = rhumb_direct(ep.dr_lat, ep.dr_lon, set_, current_m)
+    assert metres_between(*q, ep.lat, ep.lon) <= bound
+
+
+@settings(max_examples=150, deadline=None)
+@given(lat=st.floats(-70, 70), lon=st.floats(-180, 180, exclude_max=True),
+       track=st.floats(0, 360, exclude_max=True), stw=st.floats(3, 25),
+       set_=st.floats(0, 360, exclude_max=True), ratio=st.floats(0, 0.9),
+       leeway=st.floats(-10, 10), hours=st.floats(0.1, 24))
+def test_course_to_steer_then_ep_lands_on_the_track(lat, lon, track, stw, set_, ratio,
+                                                    leeway, hours):
+    drift = ratio * stw
+    try:
+        cts = course_to_steer(track, stw, set_, drift, leeway)
+    except GeometryError:
+        return
+    t = hours * 3600.0
+    ep = estimated_position(lat, lon, cts.course_to_steer, stw, t, set_, drift, leeway)
+    s, c = rhumb_inverse(lat, lon, ep.lat, ep.lon)
+    # on the intended rhumb track, at the speed made good times the time
+    assert s == pytest.approx(cts.speed_made_good_kn * hours * NM, rel=1e-9, abs=1e-6)
+    if s > 1.0:
+        assert angle_diff(c, track) < 1e-6
+    # cross-track distance from the intended track is below a millimetre
+    on = rhumb_direct(lat, lon, track, s)
+    assert metres_between(ep.lat, ep.lon, *on) < 1e-3
