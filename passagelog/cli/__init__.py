@@ -21,6 +21,8 @@ COMMANDS: dict[str, str] = {
     "demo": "demo:demo",
     "feed": "feed:feed",
     "report": "report:report",
+    "review": "review:review",
+    "status": "review:status",
 }
 
 

@@ -257,6 +257,7 @@ def _dr_currents(f_lat, f_lon, t, heading, stw_kn, prev, ok, earth):
 
 def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fixes: Any, *,
               departure_utc: datetime | float | None = None,
+              planned_departure_utc: datetime | float | None = None,
               arrival_utc: datetime | float | None = None,
               zd_minutes: int = 0,
               entries: Iterable[LogEntry] = (),
@@ -276,6 +277,8 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     ``departure_utc``/``arrival_utc``: actual times (else the first ``departure``/``arrival``
     log entry; else the first fix and the passage of the last waypoint). ``zd_minutes``: the
     ship's zone description at departure, changed by ``clock-change`` entries (noon figures).
+    ``planned_departure_utc``: where a route has no schedule of its own, the plan's schedule
+    runs from this time at the planned speeds (default: the actual departure).
     ``window_s``: window of the SMG behind the ETA by recent progress. ``gap_s``: intervals
     without a fix longer than this are gaps. ``include_suspect``: let suspect fixes count.
     ``max_speed_kn``: also flag fixes whose implied speed from the previous good fix exceeds
@@ -369,6 +372,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         dep_s = _entry_time(entries, "departure")
     if dep_s is None and n:
         dep_s = float(t[np.argmax(good)]) if good.any() else float(t[0])
+    planned_dep_s = to_seconds(planned_departure_utc, "planned departure time")
     arr_given = to_seconds(arrival_utc, "arrival time")
     if arr_given is None:
         arr_given = _entry_time(entries, "arrival")
@@ -569,7 +573,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
             given = schedule.get(r)
         elif schedule is not None and len(plans) == 1:
             given = schedule
-        sch = _schedule_times(rp, dep_s, given)
+        sch = _schedule_times(rp, planned_dep_s if planned_dep_s is not None else dep_s, given)
         scheds.append(sch)
         sel = (rev_of == r) & (phase == UNDER_WAY)
         fin = np.isfinite(sch)

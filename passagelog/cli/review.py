@@ -1,0 +1,409 @@
+"""``passagelog review`` and ``passagelog status``: the fixes against the plan.
+
+Both work on a voyage of the logbook (``VOYAGE``, default the latest) or straight from files
+(``--plan FILE --fixes FILE``). ``review --table fixes --format csv`` is part of the stable
+scripting contract (docs/cli.md).
+"""
+
+from __future__ import annotations
+
+import csv
+import json
+import math
+from datetime import datetime, timezone
+from typing import Any, Iterable, Iterator
+
+import click
+
+from passagelog.cli.common import TABLE_FORMATS, db_path_from
+
+TABLE_CHOICES = ("fixes", "legs", "passages", "episodes", "noon", "gaps", "suspects")
+NM_M = 1852.0
+
+#: Columns shown to people (table and md) for the wide fixes table; csv/json carry all.
+PEOPLE_FIX_COLUMNS = (
+    "time_utc", "lat", "lon", "leg", "xte_m", "side", "inside_xtl", "along_m", "leg_to_go_m",
+    "route_to_go_m", "dtw_m", "btw", "smg_window_kn", "eta_dest_plan_utc", "delay_s", "phase",
+)
+PEOPLE_COLUMNS = {
+    "fixes": PEOPLE_FIX_COLUMNS,
+    "legs": ("leg", "from_wp", "to_wp", "sailing", "planned_distance_m", "planned_speed_kn",
+             "planned_time_s", "actual_time_s", "completed", "run_m", "smg_kn", "max_abs_xte_m",
+             "rms_xte_m", "share_outside", "time_outside_s", "set", "drift_kn"),
+    "passages": ("waypoint", "name", "time_utc", "how", "xte_m", "closest_m", "planned_utc",
+                 "delay_s", "skipped"),
+    "noon": ("ship_date", "noon_utc", "zone", "day_hours", "lat", "lon", "run_m", "dmg_m",
+             "avg_speed_kn", "smg_kn", "route_to_go_m", "eta_dest_plan_utc"),
+}
+
+
+# ------------------------------------------------------------------------------- inputs
+
+
+def _route_fmt(name: str | None) -> str | None:
+    return {"csv": "route-csv"}.get(name, name) if name else None
+
+
+def _fix_fmt(name: str | None) -> str | None:
+    return {"csv": "fix-csv"}.get(name, name) if name else None
+
+
+def _time(text: str | None, what: str):
+    if not text:
+        return None
+    from passagelog.errors import InputError
+    from passagelog.nav.zonetime import parse_time_utc
+
+    try:
+        return parse_time_utc(text)
+    except InputError as exc:
+        raise InputError(f"{what}: {exc}") from None
+
+
+def _clock_changes(items: tuple[str, ...]):
+    from passagelog.errors import InputError
+    from passagelog.model import LogEntry
+    from passagelog.nav.zonetime import parse_zd
+
+    out = []
+    for item in items:
+        when, sep, zd = item.rpartition("=")
+        if not sep or not when.strip():
+            raise InputError(f"clock change {item!r} must be TIME=ZD, e.g. "
+                             "2026-03-02T03:00Z=+3")
+        out.append(LogEntry(_time(when.strip(), f"clock change {item!r}"), "clock-change",
+                            zd_minutes=parse_zd(zd.strip())))
+    return out
+
+
+def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
+                plan_format: str | None, fixes_file: str | None, fixes_format: str | None,
+                departure: str | None, zd: str | None, clock_changes: tuple[str, ...]) -> dict:
+    """What reconcile needs, from the logbook or from files, plus provenance fields."""
+    if plan_file or fixes_file:
+        if voyage:
+            raise click.UsageError("give either a VOYAGE or --plan/--fixes files, not both")
+        if not (plan_file and fixes_file):
+            raise click.UsageError("the file form needs both --plan FILE and --fixes FILE")
+        from passagelog.formats import read_fixes, read_route
+        from passagelog.nav.zonetime import parse_zd, zd_from_lon
+
+        route = read_route(plan_file, fmt=_route_fmt(plan_format))
+        fixes, summary = read_fixes(fixes_file, fmt=_fix_fmt(fixes_format))
+        rejected = sum(summary.rejected.values())
+        if rejected:
+            click.echo(f"{fixes_file}: {len(fixes)} fixes read, {rejected} lines rejected",
+                       err=True)
+        zd_minutes = parse_zd(zd) if zd else zd_from_lon(route.waypoints[0].lon)
+        return {
+            "plan": route, "fixes": fixes, "entries": _clock_changes(clock_changes),
+            "zd_minutes": zd_minutes, "departure_utc": _time(departure, "--departure"),
+            "planned_departure_utc": None, "voyage": "", "source": f"{plan_file}, {fixes_file}",
+            "plan_name": route.name,
+        }
+    from passagelog.store import Logbook
+
+    path = db_path_from(ctx)
+    with Logbook.open(path, create=False) as book:
+        if voyage is None:
+            voyages = book.list_voyages()
+            if not voyages:
+                raise click.UsageError(
+                    f"the logbook {str(path)!r} has no voyage; give --plan FILE --fixes FILE")
+            v = voyages[-1]
+        else:
+            v = book.voyage(voyage)
+        plan = book.plan_schedule(v)
+        if not plan:
+            raise click.UsageError(f"voyage {v.name!r} has no plan assigned")
+        fixes = book.fix_arrays(v)
+        entries = list(book.entries(v)) + _clock_changes(clock_changes)
+    dep = _time(departure, "--departure")
+    if dep is None and not any(e.kind == "departure" for e in entries):
+        dep = v.departure_utc
+    from passagelog.nav.zonetime import parse_zd
+
+    last = plan[-1][1]
+    return {
+        "plan": plan, "fixes": fixes, "entries": entries,
+        "zd_minutes": parse_zd(zd) if zd else v.zd_minutes, "departure_utc": dep,
+        "planned_departure_utc": v.departure_utc, "voyage": v.name, "source": str(path),
+        "plan_name": f"{last.name}, revision {last.revision}" if last.revision else last.name,
+    }
+
+
+def run_review(inputs: dict, window_h: float, gap_min: float, include_suspect: bool,
+               max_speed: float | None, arrival_radius: float | None):
+    from passagelog.review import reconcile
+
+    return reconcile(
+        inputs["plan"], inputs["fixes"], departure_utc=inputs["departure_utc"],
+        planned_departure_utc=inputs["planned_departure_utc"],
+        zd_minutes=inputs["zd_minutes"], entries=inputs["entries"],
+        window_s=window_h * 3600.0, gap_s=gap_min * 60.0, include_suspect=include_suspect,
+        max_speed_kn=max_speed,
+        arrival_radius_m=None if arrival_radius is None else arrival_radius * NM_M,
+    )
+
+
+def _input_options(func):
+    opts = [
+        click.argument("voyage", required=False),
+        click.option("--plan", "plan_file", metavar="FILE",
+                     help="Plan file (route CSV, GPX or RTZ) instead of a logbook voyage."),
+        click.option("--plan-format", type=click.Choice(("csv", "gpx", "rtz")),
+                     help="Format of --plan (default: told from the content)."),
+        click.option("--fixes", "fixes_file", metavar="FILE",
+                     help="Fix file (NMEA 0183, GPX or fix CSV) to go with --plan."),
+        click.option("--fixes-format", type=click.Choice(("nmea", "gpx", "csv")),
+                     help="Format of --fixes (default: told from the content)."),
+        click.option("--departure", metavar="TIME",
+                     help="Departure time (UTC, or ship's time with its ZD). Default: the "
+                          "logbook's departure entry or planned departure; the first fix."),
+        click.option("--zd", metavar="ZD",
+                     help="Ship's zone description at departure (e.g. +3). Default: the "
+                          "voyage's; for files, the zone of the first waypoint's longitude."),
+        click.option("--clock-change", "clock_changes", metavar="TIME=ZD", multiple=True,
+                     help="A clock change (new ZD from TIME); repeat as needed."),
+        click.option("--window-h", type=click.FloatRange(min=0.01), default=3.0,
+                     show_default=True, help="Window of the SMG behind the ETA by progress."),
+        click.option("--gap-min", type=click.FloatRange(min=0.01), default=60.0,
+                     show_default=True, help="A longer interval without a fix is a gap."),
+        click.option("--include-suspect", is_flag=True,
+                     help="Let suspect fixes count in the statistics and passages."),
+        click.option("--max-speed", type=click.FloatRange(min=0.01), metavar="KN",
+                     help="Also flag fixes implying more than KN from the previous good fix."),
+        click.option("--arrival-radius", type=click.FloatRange(min=0.0), metavar="NM",
+                     help="Arrival circle for waypoints that have none."),
+    ]
+    for opt in reversed(opts):
+        func = opt(func)
+    return func
+
+
+# ------------------------------------------------------------------------------- output
+
+
+def _csv_cell(value: Any) -> str:
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, float):
+        return repr(value) if math.isfinite(value) else ""
+    return str(value)
+
+
+def write_csv(rows: Iterable[dict], columns: tuple[str, ...], out) -> None:
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(columns)
+    for row in rows:
+        writer.writerow([_csv_cell(row.get(c)) for c in columns])
+
+
+def write_json(rows: Iterable[dict], out) -> None:
+    out.write("[")
+    first = True
+    for row in rows:
+        out.write("\n " if first else ",\n ")
+        out.write(json.dumps(row, ensure_ascii=False, allow_nan=False))
+        first = False
+    out.write("\n]\n" if not first else "]\n")
+
+
+def _people(row: dict) -> dict:
+    """A row rounded for people: distances in NM, positions in degrees and minutes."""
+    from passagelog.nav.position import format_lat, format_lon
+
+    out = {}
+    for key, value in row.items():
+        if value is None:
+            out[key] = ""
+        elif isinstance(value, bool):
+            out[key] = "yes" if value else "no"
+        elif key.endswith("_utc") and isinstance(value, str):
+            out[key] = value[:19] + "Z" if len(value) > 20 else value
+        elif key in ("lat", "from_lat", "to_lat"):
+            out[key] = format_lat(value)
+        elif key in ("lon", "from_lon", "to_lon"):
+            out[key] = format_lon(value)
+        elif key.endswith("_m") and isinstance(value, (int, float)):
+            out[key[:-2] + "_nm"] = f"{value / NM_M:.2f}"
+            continue
+        elif key.endswith("_s") and isinstance(value, (int, float)):
+            out[key[:-2] + "_h"] = f"{value / 3600.0:.2f}"
+            continue
+        elif key.endswith("_kn") or key.endswith("_hours"):
+            out[key] = f"{value:.1f}"
+        elif key in ("btw", "cmg", "cmg_prev", "cmg_dep", "set"):
+            out[key] = f"{value:05.1f}"
+        elif key == "share_outside":
+            out[key] = f"{100 * value:.1f}%"
+        elif isinstance(value, float):
+            out[key] = f"{value:.6g}"
+        else:
+            out[key] = value
+    return out
+
+
+def _people_columns(columns: Iterable[str]) -> list[str]:
+    out = []
+    for c in columns:
+        if c.endswith("_m"):
+            out.append(c[:-2] + "_nm")
+        elif c.endswith("_s"):
+            out.append(c[:-2] + "_h")
+        else:
+            out.append(c)
+    return out
+
+
+def emit_table(rows: Iterator[dict], table: str, fmt: str, *, title: str, provenance) -> None:
+    from passagelog.review import TABLE_COLUMNS
+
+    out = click.get_text_stream("stdout")
+    columns = TABLE_COLUMNS[table]
+    if fmt == "csv":
+        write_csv(rows, columns, out)
+        return
+    if fmt == "json":
+        write_json(rows, out)
+        return
+    from passagelog.cli.common import emit_records
+
+    shown = PEOPLE_COLUMNS.get(table, columns)
+    records = [_people({c: r.get(c) for c in shown}) for r in rows]
+    emit_records(records, _people_columns(shown), fmt, title=title, provenance=provenance)
+
+
+def _provenance(inputs: dict):
+    from passagelog.report.render import Provenance
+
+    return Provenance(source=inputs["source"], voyage=inputs["voyage"],
+                      plan=inputs["plan_name"])
+
+
+# ------------------------------------------------------------------------------ review
+
+
+@click.command("review")
+@_input_options
+@click.option("--table", type=click.Choice(TABLE_CHOICES), default="legs", show_default=True,
+              help="Which table to print.")
+@click.option("--format", "fmt", type=click.Choice(TABLE_FORMATS), default="table",
+              show_default=True, help="table and md are for people; csv and json for scripts.")
+@click.pass_context
+def review(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, departure, zd,
+           clock_changes, window_h, gap_min, include_suspect, max_speed, arrival_radius,
+           table, fmt):
+    """Reconcile the voyage's fixes with its plan and print one table.
+
+    Tables: fixes (one row per valid fix in time order), legs (planned against actual),
+    passages (waypoints passed), episodes (spells outside the cross-track limit), noon
+    (noon to noon in ship's time), gaps (no fix for longer than --gap-min), suspects.
+
+    \b
+    passagelog review "Kestrel 12" --table passages
+    passagelog review --plan route.rtz --fixes track.nmea --table fixes --format csv
+    """
+    inputs = load_inputs(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format,
+                         departure, zd, clock_changes)
+    rv = run_review(inputs, window_h, gap_min, include_suspect, max_speed, arrival_radius)
+    name = inputs["voyage"] or inputs["plan_name"]
+    emit_table(rv.iter_rows(table), table, fmt, title=f"{name}: {table}",
+               provenance=_provenance(inputs))
+
+
+# ------------------------------------------------------------------------------ status
+
+
+def _nm(m: float | None, digits: int = 2) -> str:
+    return "-" if m is None else f"{m / NM_M:.{digits}f} NM"
+
+
+def _when(t_s: float | None, zd_minutes: int) -> str:
+    if t_s is None:
+        return "-"
+    from passagelog.nav.zonetime import format_ship_time, format_utc
+
+    dt = datetime.fromtimestamp(t_s, tz=timezone.utc)
+    return f"{format_utc(dt)} ({format_ship_time(dt, zd_minutes)})"
+
+
+def _span(seconds: float) -> str:
+    s = int(round(abs(seconds)))
+    h, rem = divmod(s, 3600)
+    return f"{h} h {rem // 60:02d} min"
+
+
+def status_lines(st, *, zd_minutes: int, now_s: float | None, name: str) -> list[str]:
+    """The watch summary as lines of text."""
+    from passagelog.nav.position import format_position
+
+    lines = [f"Voyage    {name}"]
+    fix = f"Fix       {_when(st.time_s, zd_minutes)}  {format_position(st.lat, st.lon)}"
+    if now_s is not None:
+        fix += f", {_span(now_s - st.time_s)} ago" if now_s >= st.time_s else ""
+    if st.suspect:
+        fix += "  SUSPECT"
+    lines.append(fix)
+    if st.phase != "under-way":
+        lines.append(f"Phase     {st.phase}")
+    lines.append(f"Leg       {st.leg} of {st.legs}: {st.from_wp} -> {st.to_wp}")
+    side = st.side or "on track"
+    limit = "no limit set" if st.xtl_m is None else (
+        f"limit {_nm(st.xtl_m)} {st.side or ''}".rstrip()
+        + (": inside" if st.inside_xtl else ": OUTSIDE"))
+    lines.append(f"XTE       {_nm(abs(st.xte_m))} {side} ({st.xte_m:+.1f} m), {limit}")
+    lines.append(f"Along     {_nm(st.along_m)}, leg to go {_nm(st.leg_to_go_m)}")
+    btw = "-" if st.btw is None else f"{st.btw:05.1f}°T"
+    lines.append(f"Next WP   {st.to_wp}: DTW {_nm(st.dtw_m)}, BTW {btw}")
+    lines.append(f"DTG       {_nm(st.route_to_go_m)} to {st.destination} along the plan")
+    hours = st.window_s / 3600.0
+    if st.smg_window_kn is None:
+        lines.append(f"Made good -  (no progress measured over the last {hours:g} h)")
+    else:
+        cmg = "-" if st.cmg_window is None else f"{st.cmg_window:05.1f}°T"
+        lines.append(f"Made good {cmg} at {st.smg_window_kn:.1f} kn over the last {hours:g} h")
+    lines.append(f"ETA {st.to_wp:<6}{_when(st.eta_wp_plan_s, zd_minutes)} by plan, "
+                 f"{_when(st.eta_wp_smg_s, zd_minutes)} by SMG")
+    if st.to_wp != st.destination or st.leg != st.legs:
+        lines.append(f"ETA {st.destination:<6}{_when(st.eta_dest_plan_s, zd_minutes)} by plan, "
+                     f"{_when(st.eta_dest_smg_s, zd_minutes)} by SMG")
+    if st.delay_s is not None:
+        word = "behind" if st.delay_s > 0 else "ahead of"
+        lines.append(f"Schedule  {_span(st.delay_s)} {word} the plan")
+    if st.drift_kn is None:
+        lines.append("Set/drift -  (heading and speed through the water not logged)")
+    else:
+        sd = "-" if st.set is None else f"{st.set:05.1f}°T"
+        lines.append(f"Set/drift {sd} {st.drift_kn:.1f} kn over the last {hours:g} h")
+    return lines
+
+
+@click.command("status")
+@_input_options
+@click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")
+@click.option("--now", metavar="TIME", hidden=True, help="Time taken as now (for the fix age).")
+@click.pass_context
+def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, departure, zd,
+           clock_changes, window_h, gap_min, include_suspect, max_speed, arrival_radius,
+           as_json, now):
+    """The latest fix against the plan: leg, XTE and limit, DTW/BTW, DTG, SMG, ETAs by
+    plan and by recent progress, schedule, set and drift."""
+    from passagelog import CAUTION
+    from passagelog.review.inputs import clocks_from
+
+    inputs = load_inputs(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format,
+                         departure, zd, clock_changes)
+    rv = run_review(inputs, window_h, gap_min, include_suspect, max_speed, arrival_radius)
+    st = rv.status()
+    if as_json:
+        click.echo(json.dumps(st.row(), ensure_ascii=False, allow_nan=False))
+        return
+    zd_now = clocks_from(inputs["zd_minutes"], inputs["entries"]).zd_at(st.time_s)
+    now_dt = _time(now, "--now") if now else datetime.now(timezone.utc)
+    name = inputs["voyage"] or inputs["plan_name"]
+    for line in status_lines(st, zd_minutes=zd_now, now_s=now_dt.timestamp(), name=name):
+        click.echo(line)
+    click.echo(f"Caution: {CAUTION}", err=True)
