@@ -225,5 +225,6 @@ def test_a_fix_built_at_a_known_offset_is_read_back(lat, lon, course, length_km,
     assert list(fx.leg) == [1, 1]
     assert abs(fx.xte_m[1] - xte) < OFFSET_TOL_M
     assert abs(fx.along_m[1] - s) < OFFSET_TOL_M
-    assert bool(fx.inside_xtl[1]) == (abs(xte) <= 2500.0)
+    if abs(abs(xte) - 2500.0) > OFFSET_TOL_M:  # on the limit itself either answer is fair
+        assert bool(fx.inside_xtl[1]) == (abs(xte) < 2500.0)
     assert isinstance(route, Route) and math.isfinite(fx.route_to_go_m[1])
