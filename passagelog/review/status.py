@@ -90,7 +90,8 @@ def status_of(review: Review, row: int = -1) -> Status:
     cand = np.flatnonzero(good[: i + 1] & (fr.phase[: i + 1] != 0))
     cmg = None
     if cand.size:
-        j = int(cand[np.searchsorted(t[cand], t[i] - window, side="left")])
+        pos = min(int(np.searchsorted(t[cand], t[i] - window, side="left")), cand.size - 1)
+        j = int(cand[pos])
         if j < i:
             d, azi, _ = inverse(float(fr.lat[j]), float(fr.lon[j]), float(fr.lat[i]),
                                 float(fr.lon[i]), review.settings.earth)

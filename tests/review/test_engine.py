@@ -318,3 +318,21 @@ def test_bad_parameters_are_refused_with_their_name():
         reconcile(route, cols, gap_s=float("nan"))
     with pytest.raises(InputError, match="need time_s"):
         reconcile(route, {"lat": [1.0]})
+
+
+def test_status_of_the_latest_fix_even_when_it_is_suspect():
+    # regression: the SMG window was looked up among the good fixes only, and the latest
+    # (suspect) fix is not one of them
+    route = syn.route(POINTS[:3])
+    legs = syn.legs_of(route)
+    cols = syn.sail(legs, [(0, s, 0.0) for s in (0.0, 10000.0, 20000.0)] + [(1, 90000.0, 0.0)],
+                    step_s=1800.0)
+    rv = reconcile(route, cols, max_speed_kn=30.0)
+    st = rv.status()
+    assert st.suspect and st.leg == 1 and st.to_wp == "WP2"
+    good = rv.status(2)
+    assert not good.suspect and abs(good.along_m - 20000.0) < OFFSET_TOL_M
+    assert good.smg_window_kn == pytest.approx(20000.0 / 3600.0 / (1852 / 3600), rel=1e-9)
+    assert good.cmg_window == pytest.approx(rv.fixes.cmg_dep[2], abs=1e-9)
+    with pytest.raises(InputError, match="fix row 9 does not exist"):
+        rv.status(9)
