@@ -27,6 +27,7 @@ Rejected lines are counted by reason, with the first few line numbers, in the re
 
 from __future__ import annotations
 
+import math
 from collections import deque
 from datetime import date, datetime, timedelta, timezone
 from typing import IO, Callable, Iterable, Iterator, Sequence
@@ -159,7 +160,10 @@ def _num(text: str, what: str) -> float | None:
         return None
     if not text.replace(".", "", 1).isdigit():
         raise _Bad(what)
-    return float(text)
+    value = float(text)
+    if value == math.inf:  # 400 digits read as a float
+        raise _Bad(what)
+    return value
 
 
 def _course(text: str, what: str) -> float | None:

@@ -319,6 +319,8 @@ def read_rtz(fh: IO[bytes], name: str) -> Route:
         line, col = exc.position
         raise FormatError(f"not well-formed XML ({exc})",
                           where=f"{name}, line {line}, column {col + 1}") from None
+    except (LookupError, ValueError) as exc:  # an XML declaration naming an unreadable encoding
+        raise FormatError(f"cannot be read as XML ({exc})", where=name) from None
     version = rtz_version(root)
     if version is None:
         raise FormatError(

@@ -1,0 +1,48 @@
+"""Regression tests, one per bug the reliability fuzzing found (named after the bug)."""
+
+from __future__ import annotations
+
+import pytest
+
+from passagelog.errors import FormatError
+from passagelog.formats import read_fixes, read_routes
+
+ROUTE_CSV = ("name,lat,lon,sailing,speed_kn,xtl_port_nm,xtl_stbd_nm,arrival_radius_nm,"
+             "turn_radius_nm,notes\n")
+FIX_CSV = "time_utc,lat,lon,method,sog_kn,cog,heading,remarks\n"
+
+
+def nmea(body: str) -> str:
+    """A sentence with its checksum, the XOR of the characters between '$' and '*'
+    (NMEA 0183, REFERENCE.md)."""
+    x = 0
+    for c in body:
+        x ^= ord(c)
+    return f"${body}*{x:02X}\r\n"
+
+
+def test_regression_rtz_unknown_xml_encoding(tmp_path):
+    # An XML declaration naming an encoding Python does not know: LookupError used to escape;
+    # one expat cannot read (UTF-32): ValueError used to escape.
+    for enc in ("UTF-0.0", "utf-32"):
+        p = tmp_path / "route.rtz"
+        p.write_text(f'<?xml version="1.0" encoding="{enc}"?>\n'
+                     '<route xmlns="http://www.cirm.org/RTZ/1/1" version="1.1"/>\n')
+        with pytest.raises(FormatError, match=r"route\.rtz: cannot be read as XML"):
+            read_routes(p)
+
+
+def test_regression_nmea_huge_number_field(tmp_path):
+    # A GGA whose HDOP is 400 nines: float() gives inf, and the fix constructor's InputError
+    # (with no file or line) used to end the whole read. Now that line alone is rejected.
+    good = nmea("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W")
+    bad_gga = nmea("GPGGA,123520,4807.038,N,01131.000,E,1,08," + "9" * 400 + ",545.4,M,46.9,M,,")
+    bad_rmc = nmea("GPRMC,123521,A,4807.038,N,01131.000,E," + "9" * 400
+                   + ",084.4,230394,003.1,W")
+    last = nmea("GPRMC,123522,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W")
+    p = tmp_path / "log.nmea"
+    p.write_text(good + bad_gga + bad_rmc + last)
+    fixes, summary = read_fixes(p)
+    assert [f.time_utc.second for f in fixes] == [19, 22]
+    assert summary.lines_rejected == 2
+    assert sorted(line for places in summary.rejected_at.values() for line in places) == [2, 3]
