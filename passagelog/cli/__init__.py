@@ -18,7 +18,13 @@ from passagelog import __version__
 #: command name -> "module:attribute" (relative to passagelog.cli)
 COMMANDS: dict[str, str] = {
     "calc": "calc:calc",
+    "craft": "logbook:craft",
     "demo": "demo:demo",
+    "entry": "logbook:entry",
+    "fix": "logbook:fix",
+    "plan": "plan:plan",
+    "verify": "logbook:verify",
+    "voyage": "logbook:voyage",
     "feed": "feed:feed",
     "report": "report:report",
     "review": "review:review",
