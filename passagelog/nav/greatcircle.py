@@ -15,8 +15,9 @@ here by iterating on the foot's parameter along the line:
    circle there), with the longitude lag of the geodesic applied to the position;
 2. from the current foot F, one inverse problem F -> P gives the distance ``d`` and the angle
    ``theta`` between the line and the geodesic to P at F; the right spherical triangle gives
-   the move along the line ``ds = R atan2(sin(d/R) cos(theta), cos(d/R))`` (exact on a
-   sphere; on the ellipsoid each step shrinks the error by a factor of order f (d/R)^2);
+   the move along the line ``ds = R atan2(sin(d/R) cos(theta), cos(d/R))``, with R the
+   radius of Gaussian curvature at the mean latitude of F and P (exact on a sphere; on the
+   ellipsoid each step shrinks the error by a factor well below f (d/R)^2);
 3. repeat on the positions that have not yet moved by less than :data:`FOOT_TOLERANCE_M`.
 
 The batch version (:meth:`GreatCircleLeg.offsets_np`) evaluates points of the line in numpy
@@ -172,9 +173,6 @@ class GreatCircleLeg:
         self._B31 = ln._B31
         self._b = ln._b
         self._f1 = ln._f1
-        # Radius for the right-triangle step of the foot iteration (exact on a sphere).
-        e = self.earth
-        self._R = e.a if e.is_sphere else (2.0 * e.a + e.b) / 3.0
 
     def __repr__(self) -> str:
         return (f"GreatCircleLeg({self.lat1!r}, {self.lon1!r}, {self.lat2!r}, {self.lon2!r}, "
@@ -217,6 +215,25 @@ class GreatCircleLeg:
         s = self._b * self._A1 * (sig12 + (B12 - self._B11))
         dn = np.sqrt(1.0 + self._k2 * ssig2 * ssig2)
         return lat, lon, _course_np(azi), s, dn
+
+    def _foot_np(self, sig12):
+        """Lean line evaluation for the foot iteration: lat, lon (not folded), azimuth
+        (degrees, not folded) and dn = (ds/dsigma)/b at arc ``sig12`` from the start."""
+        sig = self._sig1 + sig12
+        ssig2, csig2 = np.sin(sig), np.cos(sig)
+        salp0, calp0 = self._salp0, self._calp0
+        ccs = calp0 * csig2
+        lat = np.degrees(np.arctan2(calp0 * ssig2, self._f1 * np.hypot(salp0, ccs)))
+        azi = np.degrees(np.arctan2(salp0, ccs))
+        E = self._E
+        # longitude on the auxiliary sphere; whole turns do not matter to the inverse problem
+        lam12 = E * (np.arctan2(E * salp0 * ssig2, csig2) - self._omg1E)
+        if self._A3c != 0.0:
+            lam12 += self._A3c * (sig12 + (_sincos_series_np(ssig2, csig2, self._C3a)
+                                           - self._B31))
+        lon = self.lon1 + np.degrees(lam12)
+        dn = np.sqrt(1.0 + self._k2 * ssig2 * ssig2) if self._k2 else 1.0
+        return lat, lon, azi, dn
 
     def _sigma_of_s_np(self, s):
         """Arc (radians from the start) at distance ``s`` along the line (Newton, numpy)."""
@@ -338,9 +355,9 @@ class GreatCircleLeg:
         sig = np.full_like(phi, half)
         for _ in range(2):
             # longitude lag lambda - omega between the start and the current foot
-            ss, cs = np.sin(self._sig1 + sig), np.cos(self._sig1 + sig)
-            lag = self._A3c * (sig + (_sincos_series_np(ss, cs, self._C3a) - self._B31))
-            omg = self._omg1 + dlon - lag
+            # (its secular part: the periodic part is of order f^2, below what a first
+            # guess needs)
+            omg = self._omg1 + dlon - self._A3c * sig
             px, py, pz = cb * np.cos(omg), cb * np.sin(omg), sb
             u = px
             v = salp0 * py + calp0 * pz
@@ -372,24 +389,26 @@ class GreatCircleLeg:
         if at_pole.any():
             i = int(np.flatnonzero(at_pole)[0])
             raise GeometryError(self._pole_message(lat[i], lon[i], i))
-        from passagelog.nav.geodesic import inverse_np
-
-        R = self._R
+        geod = self.earth.geod
+        a, e2 = self.earth.a, self.earth.e2
+        sphere = self.earth.is_sphere
         todo = np.arange(n)
         s_todo = sig
         lat_t, lon_t = lat, lon
         for _ in range(FOOT_MAX_ITERATIONS):
-            flat, flon, fazi, _, dn = self._at_sigma_np(s_todo)
-            d, azi_fp, _ = inverse_np(flat, flon, lat_t, lon_t, self.earth)
-            theta = np.radians(azi_fp - fazi)
-            dr = d / R
+            flat, flon, fazi, dn = self._foot_np(s_todo)
+            # one vectorised inverse problem foot -> position (pyproj, PROJ's geodesic.c)
+            azi_fp, _, d = geod.inv(flon, flat, lon_t, lat_t)
+            R = a if sphere else self._gauss_radius_np(flat, lat_t)
+            theta = np.radians(np.asarray(azi_fp) - fazi)
+            dr = np.asarray(d) / R
             ds = R * np.arctan2(np.sin(dr) * np.cos(theta), np.cos(dr))
             s_new = s_todo + ds / (self._b * dn)
             done = np.abs(ds) < FOOT_TOLERANCE_M
             if done.any():
                 idx = todo[done]
-                xte[idx] = R * np.arcsin(np.clip(np.sin(dr[done]) * np.sin(theta[done]),
-                                                 -1.0, 1.0))
+                xte[idx] = self._xte_np(dr[done], theta[done],
+                                        R if sphere else R[done])
                 along[idx] = self._s_of_sigma_np(s_new[done])
             keep = ~done
             if not keep.any():
@@ -401,6 +420,22 @@ class GreatCircleLeg:
         raise GeometryError(
             f"position {i} ({lat[i]!r}, {lon[i]!r}): the foot on the great-circle leg "
             f"{self._ends()} did not converge in {FOOT_MAX_ITERATIONS} iterations")
+
+    def _gauss_radius_np(self, lat_a, lat_b):
+        """Radius of Gaussian curvature sqrt(M N) at the mean of two latitudes: the sphere
+        that best fits the ellipsoid between the foot and the position."""
+        e2 = self.earth.e2
+        sm = np.sin(np.radians(0.5 * (lat_a + lat_b)))
+        return self.earth.a * math.sqrt(1.0 - e2) / (1.0 - e2 * sm * sm)
+
+    @staticmethod
+    def _xte_np(dr, theta, R):
+        """Signed distance to the line at the (converged) foot: the right spherical triangle
+        on the fitting sphere; the plain distance with its sign beyond a quarter circle."""
+        sin_t = np.sin(theta)
+        near = R * np.arcsin(np.clip(np.sin(dr) * sin_t, -1.0, 1.0))
+        far = np.copysign(dr * R, sin_t)
+        return np.where(dr < 1.0, near, far)
 
     def _s_of_sigma_np(self, sig12):
         sig = self._sig1 + sig12
@@ -428,19 +463,26 @@ class GreatCircleLeg:
             raise GeometryError(self._pole_message(lat, lon))
         from geographiclib.geodesic import Geodesic
 
-        line, g, R = self._line, self._geod, self._R
+        line, g = self._line, self._geod
+        a, e2 = self.earth.a, self.earth.e2
         mask = Geodesic.LATITUDE | Geodesic.LONGITUDE | Geodesic.AZIMUTH
         for _ in range(FOOT_MAX_ITERATIONS):
             p = line.ArcPosition(math.degrees(sig), mask)
             inv = g.Inverse(p["lat2"], p["lon2"], lat, lon,
                             Geodesic.DISTANCE | Geodesic.AZIMUTH)
+            sm = math.sin(math.radians(0.5 * (p["lat2"] + lat)))
+            R = a * math.sqrt(1.0 - e2) / (1.0 - e2 * sm * sm)
             theta = math.radians(inv["azi1"] - p["azi2"])
             dr = inv["s12"] / R
             ds = R * math.atan2(math.sin(dr) * math.cos(theta), math.cos(dr))
             ssig2 = math.sin(self._sig1 + sig)
             sig += ds / (self._b * math.sqrt(1.0 + self._k2 * ssig2 * ssig2))
             if abs(ds) < FOOT_TOLERANCE_M:
-                xte = R * math.asin(max(-1.0, min(1.0, math.sin(dr) * math.sin(theta))))
+                sin_t = math.sin(theta)
+                if dr < 1.0:
+                    xte = R * math.asin(max(-1.0, min(1.0, math.sin(dr) * sin_t)))
+                else:
+                    xte = math.copysign(dr * R, sin_t)
                 along = line.ArcPosition(math.degrees(sig), Geodesic.DISTANCE)["s12"]
                 return xte, along
         raise GeometryError(
