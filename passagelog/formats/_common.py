@@ -167,3 +167,20 @@ class ReadSummary:
             kinds = ", ".join(f"{k} {n}" for k, n in sorted(self.ignored.items()))
             out.append(f"  ignored: {kinds}")
         return out
+
+
+def decimal_text(value: float) -> str:
+    """The shortest text that reads back as exactly ``value``, without an exponent.
+
+    ``repr`` writes tiny or huge numbers as ``1e-07``; GPX and RTZ number attributes are
+    ``xs:decimal`` (no exponent allowed) and the CSV position cells are read as positions,
+    so those are spelt out in positional notation, still exact.
+    """
+    text = repr(float(value))
+    if "e" in text or "E" in text:
+        from decimal import Decimal
+
+        text = format(Decimal(text), "f")
+        if "." not in text:
+            text += ".0"
+    return text

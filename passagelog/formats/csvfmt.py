@@ -30,7 +30,7 @@ import math
 from typing import IO, Iterable, Iterator
 
 from passagelog.errors import FormatError, InputError
-from passagelog.formats._common import ReadSummary
+from passagelog.formats._common import ReadSummary, decimal_text
 from passagelog.formats.gpx import format_time, parse_time
 from passagelog.model import FIX_METHODS, SAILINGS, Fix, LegPlan, Route, Waypoint
 from passagelog.nav.position import parse_lat, parse_lon
@@ -50,11 +50,13 @@ def header_of(first_line: str) -> list[str]:
 
 
 def is_route_header(cols: list[str]) -> bool:
-    return all(c in cols for c in _ROUTE_REQUIRED) and set(cols) <= set(ROUTE_HEADER)
+    """A route CSV header by its required columns (the reader checks the others)."""
+    return all(c in cols for c in _ROUTE_REQUIRED) and "time_utc" not in cols
 
 
 def is_fix_header(cols: list[str]) -> bool:
-    return all(c in cols for c in _FIX_REQUIRED) and set(cols) <= set(FIX_HEADER)
+    """A fix CSV header by its required columns (the reader checks the others)."""
+    return all(c in cols for c in _FIX_REQUIRED)
 
 
 class _Rows:
@@ -71,6 +73,8 @@ class _Rows:
                               + ",".join(allowed), where=name) from None
         except csv.Error as exc:
             raise FormatError(f"not CSV ({exc})", where=f"{name}, line 1") from None
+        except UnicodeDecodeError as exc:
+            raise FormatError(f"not UTF-8 text ({exc.reason})", where=name) from None
         cols = [c.strip().lower().lstrip("\ufeff") for c in header]
         for col in cols:
             if col not in allowed:
@@ -95,6 +99,9 @@ class _Rows:
             except csv.Error as exc:
                 raise FormatError(f"not CSV ({exc})",
                                   where=f"{self.name}, line {self.reader.line_num}") from None
+            except UnicodeDecodeError as exc:  # text is decoded ahead in blocks: "after"
+                raise FormatError(f"not UTF-8 text after line {self.reader.line_num} "
+                                  f"({exc.reason})", where=self.name) from None
             line = self.reader.line_num
             if not row or all(not c.strip() for c in row):
                 continue
@@ -195,9 +202,9 @@ def iter_fix_csv(stream: IO[str], name: str, summary: ReadSummary, *,
                               where=rows.place(line, "method"))
         cog = _number(rows, line, cells, "cog", high=360.0)
         heading = _number(rows, line, cells, "heading", high=360.0)
+        sog = _number(rows, line, cells, "sog_kn")
         try:
-            fix = Fix(t, lat, lon, method=method,
-                      sog_kn=_number(rows, line, cells, "sog_kn"),
+            fix = Fix(t, lat, lon, method=method, sog_kn=sog,
                       cog=None if cog is None else cog % 360.0,
                       heading=None if heading is None else heading % 360.0,
                       remarks=cells.get("remarks", ""), source=f"{name}:{line}")
@@ -216,11 +223,11 @@ def iter_fix_csv(stream: IO[str], name: str, summary: ReadSummary, *,
 
 
 def _cell(value: float | None) -> str:
-    return "" if value is None else repr(float(value))
+    return "" if value is None else decimal_text(value)
 
 
 def _nm_cell(metres: float | None) -> str:
-    return "" if metres is None else repr(round(metres / NM_M, 12))
+    return "" if metres is None else decimal_text(round(metres / NM_M, 12))
 
 
 def write_route_csv(route: Route, stream: IO[str]) -> None:

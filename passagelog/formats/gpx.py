@@ -8,9 +8,10 @@ path (``gpx/trk[1]/trkseg[2]/trkpt[17]``). ElementTree does not fetch external e
 the expat it is built on (2.4.1 and later) refuses entity-expansion bombs, so defusedxml is
 not needed for these files.
 
-Routes are written with gpxpy (it orders the elements as the GPX 1.1 schema requires and
-keeps our extension namespace); tracks are written by a small streaming writer here so that
-an export of a million fixes does not build a million objects first.
+Routes and tracks are written here too, in the element order of the GPX 1.1 schema:
+gpxpy's writer leaves quotes in extension attributes unescaped (invalid XML; found by the
+round-trip test) and would build a million objects for a long track first. gpxpy reads our
+output back in the tests, as an outside check.
 
 Leg attributes GPX cannot carry go into an extension in passagelog's own namespace,
 :data:`NS` (``https://passagelog.invalid/gpx/1``; ``.invalid`` is reserved by RFC 2606 and
@@ -32,7 +33,7 @@ from typing import IO, Iterable, Iterator
 from xml.sax.saxutils import escape, quoteattr
 
 from passagelog.errors import FormatError, InputError
-from passagelog.formats._common import ReadSummary, where
+from passagelog.formats._common import ReadSummary, decimal_text, where
 from passagelog.model import FIX_METHODS, Fix, LegPlan, Route, Waypoint
 from passagelog.nav.units import NM_M
 
@@ -90,7 +91,7 @@ def _nm_to_m(text: str | None) -> float | None:
 
 
 def _nm(value_m: float | None) -> str | None:
-    return None if value_m is None else repr(round(value_m / NM_M, 12))
+    return None if value_m is None else decimal_text(round(value_m / NM_M, 12))
 
 
 class _Walker:
@@ -307,41 +308,47 @@ def _attrs(pairs: Iterable[tuple[str, str | None]]) -> dict[str, str]:
     return {k: v for k, v in pairs if v is not None and v != ""}
 
 
-def write_gpx_route(route: Route, stream: IO[str]) -> None:
-    """One route as GPX 1.1 ``rte`` (with passagelog's leg extension), via gpxpy."""
-    import gpxpy.gpx
+def _element(tag: str, attrs: dict[str, str]) -> str:
+    return f"<{tag}" + "".join(f" {k}={quoteattr(v)}" for k, v in attrs.items()) + "/>"
 
-    gpx = gpxpy.gpx.GPX()
-    gpx.creator = "passagelog"
-    gpx.nsmap[PREFIX] = NS
-    rte = gpxpy.gpx.GPXRoute(name=route.name)
+
+def write_gpx_route(route: Route, stream: IO[str]) -> None:
+    """One route as GPX 1.1 ``rte`` (with passagelog's leg extension)."""
+    stream.write('<?xml version="1.0" encoding="UTF-8"?>\n'
+                 f'<gpx xmlns="{GPX11}" xmlns:{PREFIX}="{NS}" version="1.1" '
+                 'creator="passagelog">\n  <rte>\n'
+                 f"    <name>{escape(route.name)}</name>\n")
     for i, wp in enumerate(route.waypoints):
-        pt = gpxpy.gpx.GPXRoutePoint(latitude=wp.lat, longitude=wp.lon, name=wp.name)
+        stream.write(f"    <rtept lat={quoteattr(decimal_text(wp.lat))} "
+                     f"lon={quoteattr(decimal_text(wp.lon))}>")
+        if wp.name:
+            stream.write(f"<name>{escape(wp.name)}</name>")
+        ext: list[str] = []
         way = _attrs([("arrivalRadiusNm", _nm(wp.arrival_radius_m)),
                       ("rtzId", None if wp.rtz_id is None else str(wp.rtz_id)),
                       ("revision", None if wp.revision is None else str(wp.revision))])
         if way:
-            pt.extensions.append(ET.Element(f"{{{NS}}}waypoint", way))
+            ext.append(_element(f"{PREFIX}:waypoint", way))
         if i > 0:
             leg = route.legs[i - 1]
-            pt.extensions.append(ET.Element(f"{{{NS}}}leg", _attrs([
+            ext.append(_element(f"{PREFIX}:leg", _attrs([
                 ("sailing", leg.sailing),
-                ("speedKn", None if leg.speed_kn is None else repr(leg.speed_kn)),
-                ("speedMinKn", None if leg.speed_min_kn is None else repr(leg.speed_min_kn)),
-                ("speedMaxKn", None if leg.speed_max_kn is None else repr(leg.speed_max_kn)),
+                ("speedKn", _num(leg.speed_kn)),
+                ("speedMinKn", _num(leg.speed_min_kn)),
+                ("speedMaxKn", _num(leg.speed_max_kn)),
                 ("xtlPortNm", _nm(leg.xtl_port_m)),
                 ("xtlStbdNm", _nm(leg.xtl_stbd_m)),
                 ("turnRadiusNm", _nm(leg.turn_radius_m)),
                 ("notes", leg.notes),
             ])))
-        rte.points.append(pt)
-    gpx.routes.append(rte)
-    stream.write(gpx.to_xml(version="1.1"))
-    stream.write("\n")
+        if ext:
+            stream.write("<extensions>" + "".join(ext) + "</extensions>")
+        stream.write("</rtept>\n")
+    stream.write("  </rte>\n</gpx>\n")
 
 
 def _num(value: float | None) -> str | None:
-    return None if value is None else repr(float(value))
+    return None if value is None else decimal_text(value)
 
 
 def write_gpx_track(fixes: Iterable[Fix], stream: IO[str], *, name: str = "") -> int:
@@ -354,12 +361,13 @@ def write_gpx_track(fixes: Iterable[Fix], stream: IO[str], *, name: str = "") ->
     stream.write("    <trkseg>\n")
     count = 0
     for fix in fixes:
-        parts = [f'      <trkpt lat={quoteattr(repr(fix.lat))} lon={quoteattr(repr(fix.lon))}>',
+        parts = [f"      <trkpt lat={quoteattr(decimal_text(fix.lat))} "
+                 f"lon={quoteattr(decimal_text(fix.lon))}>",
                  f"<time>{format_time(fix.time_utc)}</time>"]
         if fix.satellites is not None:
             parts.append(f"<sat>{fix.satellites}</sat>")
         if fix.hdop is not None:
-            parts.append(f"<hdop>{fix.hdop!r}</hdop>")
+            parts.append(f"<hdop>{decimal_text(fix.hdop)}</hdop>")
         ext = _attrs([("method", fix.method), ("sogKn", _num(fix.sog_kn)),
                       ("cog", _num(fix.cog)), ("heading", _num(fix.heading)),
                       ("stwKn", _num(fix.stw_kn)), ("fixMode", fix.fix_mode),

@@ -34,7 +34,7 @@ from datetime import datetime
 from typing import IO
 
 from passagelog.errors import FormatError, InputError
-from passagelog.formats._common import where
+from passagelog.formats._common import decimal_text, where
 from passagelog.formats.gpx import format_time, parse_time
 from passagelog.model import LegPlan, Route, ScheduleItem, Waypoint
 from passagelog.nav.units import NM_M
@@ -334,7 +334,7 @@ def read_rtz(fh: IO[bytes], name: str) -> Route:
 
 
 def _fmt_nm(metres: float) -> str:
-    return repr(round(metres / NM_M, 12))
+    return decimal_text(round(metres / NM_M, 12))
 
 
 def _renamespace(elem: ET.Element, target: str) -> ET.Element:
@@ -403,7 +403,8 @@ def write_rtz(route: Route, stream: IO[str], *, version: str = "1.1") -> None:
         attrs.update({k.split("@", 1)[1]: v for k, v in wp.extras
                       if k.startswith("rtz:waypoint@")})
         elem = ET.SubElement(wps, q("waypoint"), attrs)
-        ET.SubElement(elem, q("position"), {"lat": repr(wp.lat), "lon": repr(wp.lon)})
+        ET.SubElement(elem, q("position"),
+                      {"lat": decimal_text(wp.lat), "lon": decimal_text(wp.lon)})
         own: list[ET.Element] = []
         if wp.arrival_radius_m is not None:
             own.append(ET.Element(f"{{{PL_NS}}}waypoint",
@@ -415,9 +416,9 @@ def write_rtz(route: Route, stream: IO[str], *, version: str = "1.1") -> None:
             if leg.xtl_stbd_m is not None:
                 la["starboardXTD"] = _fmt_nm(leg.xtl_stbd_m)
             if leg.speed_min_kn is not None:
-                la["speedMin"] = repr(leg.speed_min_kn)
+                la["speedMin"] = decimal_text(leg.speed_min_kn)
             if leg.speed_max_kn is not None:
-                la["speedMax"] = repr(leg.speed_max_kn)
+                la["speedMax"] = decimal_text(leg.speed_max_kn)
             if leg.notes:
                 la["legNote1"] = leg.notes
             la.update({k.split("@", 1)[1]: v for k, v in leg.extras
@@ -425,7 +426,8 @@ def write_rtz(route: Route, stream: IO[str], *, version: str = "1.1") -> None:
             leg_elem = ET.SubElement(elem, q("leg"), la)
             kept(leg_elem, [v for k, v in leg.extras if k == "rtz:extension"])
             if leg.speed_kn is not None:
-                own.append(ET.Element(f"{{{PL_NS}}}leg", {"speedKn": repr(leg.speed_kn)}))
+                own.append(ET.Element(f"{{{PL_NS}}}leg",
+                                      {"speedKn": decimal_text(leg.speed_kn)}))
         else:
             for k, v in wp.extras:
                 if k == "rtz:leg":
