@@ -416,7 +416,7 @@ class NmeaReader:
                     year = int(y) if len(y) == 4 else _year(int(y))
                     try:
                         zday = date(year, int(mo), int(d))
-                    except ValueError:
+                    except (ValueError, OverflowError):  # a day of 400 digits overflows
                         raise _Bad("ZDA date") from None
                     self._date = zday
                     self._last_tod = tod

@@ -46,3 +46,14 @@ def test_regression_nmea_huge_number_field(tmp_path):
     assert [f.time_utc.second for f in fixes] == [19, 22]
     assert summary.lines_rejected == 2
     assert sorted(line for places in summary.rejected_at.values() for line in places) == [2, 3]
+
+
+def test_regression_nmea_zda_day_overflow(tmp_path):
+    # A ZDA whose day field is 400 digits: date() raised OverflowError (not ValueError), which
+    # escaped the reader. Now the line is rejected and counted.
+    good = nmea("GPRMC,123519,A,4807.038,N,01131.000,E,022.4,084.4,230394,003.1,W")
+    bad_zda = nmea("GPZDA,123520.00," + "9" * 400 + ",03,1994,00,00")
+    p = tmp_path / "log.nmea"
+    p.write_text(good + bad_zda)
+    fixes, summary = read_fixes(p)
+    assert len(fixes) == 1 and summary.rejected_at == {"bad field: ZDA date": [2]}
