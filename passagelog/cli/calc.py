@@ -17,6 +17,17 @@ CALC_COMMANDS: dict[str, str] = {
     "position": "calc_misc:position",
     "convert": "calc_misc:convert",
     "zone": "calc_misc:zone",
+    # dead reckoning, triangles and fixes
+    "dr": "calc_nav:dr",
+    "ep": "calc_nav:ep",
+    "set-drift": "calc_nav:set_drift",
+    "steer": "calc_nav:steer",
+    "wind": "calc_nav:wind",
+    "heading": "calc_nav:heading",
+    "from-mark": "calc_nav:from_mark",
+    "bearings": "calc_nav:bearings",
+    "ranges": "calc_nav:ranges",
+    "alteration": "calc_nav:alteration",
 }
 
 
