@@ -1,0 +1,160 @@
+"""The voyage review report: one self-contained HTML file that prints well to PDF.
+
+Sections: voyage header and provenance; the plan's leg table; per-leg deviation statistics;
+waypoint passages planned against actual; deviation episodes; noon figures; gaps and suspect
+fixes; and the figures as inline SVG (track against the plan on a Mercator chart with the
+corridors and the episodes, XTE over time with the limits, speed made good over time, and a
+range view centred on a chosen waypoint). Figures are shown in the trade's units (NM, knots,
+hours); the engine's rows are in metres and seconds and are converted here, on the way out.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+from datetime import datetime, timezone
+from typing import Iterable, Sequence
+
+from passagelog.nav.position import format_position
+from passagelog.nav.units import NM_M
+from passagelog.report import plots
+from passagelog.report.legtable import LEG_TABLE_COLUMNS, leg_table_records, plan_leg_table
+from passagelog.report.render import Provenance, esc, html_document, html_table
+from passagelog.review import Review
+
+
+@dataclass(frozen=True)
+class VoyageHeader:
+    """What the report says about the voyage itself."""
+
+    name: str = ""
+    craft: str = ""
+    from_place: str = ""
+    to_place: str = ""
+    departure_utc: datetime | None = None
+
+
+def display_value(key: str, value):
+    """A row value in the trade's units: ``*_m`` -> NM, ``*_s`` -> h:mm, shares -> %."""
+    if value is None:
+        return None
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if key.endswith("_m") and isinstance(value, (int, float)):
+        return round(value / NM_M, 2)
+    if key.endswith("_s") and isinstance(value, (int, float)):
+        minutes = round(abs(value) / 60.0)
+        return f"{'-' if value < 0 else ''}{minutes // 60}:{minutes % 60:02d}"
+    if key.startswith("share") and isinstance(value, (int, float)):
+        return f"{100.0 * value:.1f}%"
+    if isinstance(value, float):
+        return round(value, 2)
+    return value
+
+
+def display_key(key: str) -> str:
+    """The column heading for ``key`` in the trade's units."""
+    if key.endswith("_m"):
+        return key[:-2] + "_nm"
+    if key.endswith("_s"):
+        return key[:-2] + "_h:mm"
+    return key
+
+
+def display_records(rows: Iterable[dict], columns: Sequence[str]) -> tuple[list[dict], list[str]]:
+    out = []
+    for row in rows:
+        out.append({display_key(c): display_value(c, row.get(c)) for c in columns})
+    return out, [display_key(c) for c in columns]
+
+
+def _position_rows(rows: list[dict]) -> list[dict]:
+    for row in rows:
+        if "lat" in row and "lon" in row and row["lat"] is not None:
+            row["position"] = format_position(row.pop("lat"), row.pop("lon"), decimals=1)
+    return rows
+
+
+_TEXT = {"from_wp", "to_wp", "name", "how", "side", "sailing", "position", "reason", "zone",
+         "from", "to", "notes", "eta_ship", "ship_date"}
+
+
+def _table(rows: list[dict], columns: Sequence[str], empty: str) -> str:
+    rows = _position_rows([dict(r) for r in rows])
+    if rows and "position" in rows[0]:
+        columns = [c for c in columns if c not in ("lat", "lon")]
+        columns.insert(min(2, len(columns)), "position")
+    recs, cols = display_records(rows, columns)
+    text_cols = {display_key(c) for c in _TEXT} | {c for c in cols if c.endswith("_utc")}
+    return html_table(recs, cols, text_columns=text_cols, empty=empty)
+
+
+def _limits_per_fix(review: Review) -> tuple[list[float | None], list[float | None]]:
+    fx = review.fixes
+    port, stbd = [], []
+    for r, k in zip(fx.revision.tolist(), fx.leg.tolist()):
+        legs = review.routes[int(r)].legs
+        plan = legs[int(k) - 1] if 1 <= int(k) <= len(legs) else None
+        port.append(plan.xtl_port_m if plan else None)
+        stbd.append(plan.xtl_stbd_m if plan else None)
+    return port, stbd
+
+
+def voyage_report_html(review: Review, header: VoyageHeader, provenance: Provenance, *,
+                       center_waypoint: int | None = None) -> str:
+    """The whole report as one HTML document (see the module docstring).
+
+    ``center_waypoint`` (1-based, in the plan in force at the end) centres the range view;
+    by default the last waypoint (the destination).
+    """
+    route = review.routes[-1]
+    fx = review.fixes
+    times = [datetime.fromtimestamp(t, timezone.utc) for t in fx.time_s.tolist()]
+    dep = header.departure_utc
+    head_rows = [
+        ("Voyage", header.name), ("Craft", header.craft),
+        ("From", header.from_place), ("To", header.to_place),
+        ("Departure (UTC)", f"{dep:%Y-%m-%d %H:%M}Z" if dep else ""),
+        ("Fixes reviewed", str(len(fx))),
+        ("Plan", f"{route.name}" + (f", revision {route.revision}"
+                                     if route.revision is not None else "")),
+    ]
+    head = "<table class=\"prov\">" + "".join(
+        f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in head_rows if v) + "</table>"
+    sections: list[tuple[str, str]] = [("Voyage", head)]
+
+    leg_recs = leg_table_records(plan_leg_table(route, departure_utc=dep))
+    sections.append(("Plan: leg table", html_table(
+        leg_recs, list(LEG_TABLE_COLUMNS),
+        text_columns=("from", "to", "sailing", "notes", "etd_utc", "eta_utc", "eta_ship"))))
+
+    figures = []
+    geometry = plots.plan_geometry(route)
+    if len(fx):
+        outside = (~fx.inside_xtl.astype(bool)).tolist()
+        figures.append(plots.track_chart_svg(geometry, fx.lat, fx.lon, times, outside,
+                                             title=f"Track and plan: {route.name}"))
+        port, stbd = _limits_per_fix(review)
+        figures.append(plots.xte_svg(times, fx.xte_m, port, stbd))
+        smg = [None if not math.isfinite(v) else v for v in fx.smg_window_kn.tolist()]
+        figures.append(plots.speed_svg(times, smg))
+    k = (center_waypoint or len(route.waypoints)) - 1
+    k = min(max(k, 0), len(route.waypoints) - 1)
+    c = route.waypoints[k]
+    figures.append(plots.range_view_svg(c.name, c.lat, c.lon, geometry, fx.lat, fx.lon))
+    sections.append(("Figures", "".join(f'<div class="figure">{svg}</div>' for svg in figures)))
+
+    from passagelog.review import TABLE_COLUMNS
+
+    for title, table, empty in (
+        ("Per-leg deviation statistics", "legs", "no legs sailed"),
+        ("Waypoint passages, planned and actual", "passages", "no waypoint passed"),
+        ("Deviation episodes (outside the cross-track limit)", "episodes",
+         "none: the track stayed inside every corridor"),
+        ("Noon figures", "noon", "no ship's noon in the period"),
+        ("Gaps in the fixes", "gaps", "no gaps"),
+        ("Suspect fixes (left out of the statistics)", "suspects", "none"),
+    ):
+        sections.append((title, _table(review.rows(table), list(TABLE_COLUMNS[table]), empty)))
+    title = f"Voyage review: {header.name or route.name}"
+    return html_document(title, sections, provenance=provenance)
