@@ -275,3 +275,35 @@ def test_wheel_over_limits():
     assert wheel_over_distance_m(-60.0, 1000.0) == pytest.approx(1000.0 / math.sqrt(3))
     with pytest.raises(GeometryError, match="180"):
         wheel_over_distance_m(180.0, 500.0)
+
+
+def test_alteration_at_waypoint_great_circle_and_rhumb():
+    from passagelog.nav.fixing import alteration_at_waypoint
+    from passagelog.nav.rhumb import rhumb_inverse
+
+    a, w, b = (50.0, -4.0), (50.5, -3.0), (51.0, -3.0)
+    # great circle: the incoming leg's course at the waypoint is geographiclib's azi2, the
+    # outgoing leg's is azi1 of the next leg (Karney 2013)
+    gin = G.Inverse(*a, *w)
+    gout = G.Inverse(*w, *b)
+    r = alteration_at_waypoint(*a, *w, *b, "great-circle", radius_m=926.0)
+    assert r.course_in == pytest.approx(gin["azi2"] % 360.0, abs=1e-9)
+    assert r.course_out == pytest.approx(gout["azi1"] % 360.0, abs=1e-9)
+    assert r.alteration == pytest.approx(gout["azi1"] - gin["azi2"], abs=1e-9)
+    assert r.leg_in_m == pytest.approx(gin["s12"], abs=1e-6)
+    # the wheel-over point lies on the incoming geodesic, wheel_over_m before the waypoint
+    back = G.Inverse(r.wop_lat, r.wop_lon, *w)
+    assert back["s12"] == pytest.approx(r.wheel_over_m, abs=1e-6)
+    assert back["azi2"] % 360.0 == pytest.approx(r.course_in, abs=1e-7)
+    # rhumb legs: a constant course along each
+    rr = alteration_at_waypoint(*a, *w, *b, "rhumb")
+    assert rr.course_in == pytest.approx(rhumb_inverse(*a, *w)[1], abs=1e-12)
+    assert rr.course_out == pytest.approx(0.0, abs=1e-12)
+    assert rr.wheel_over_m is None and rr.wop_lat is None
+    # a radius too large for the incoming leg is refused
+    with pytest.raises(GeometryError, match="too large"):
+        alteration_at_waypoint(*a, *w, *b, "rhumb", radius_m=500_000.0)
+    with pytest.raises(GeometryError, match="zero length"):
+        alteration_at_waypoint(*w, *w, *b)
+    with pytest.raises(InputError, match="sailing"):
+        alteration_at_waypoint(*a, *w, *b, "mercator")
