@@ -39,7 +39,7 @@ FIELDS = (
     ("arrival", "Arrival R NM", ""),
 )
 
-SAILING_CHOICES = [("rhumb line", "rhumb"), ("great circle", "great-circle")]
+SAILING_CHOICES = [("RL rhumb line", "rhumb"), ("GC great circle", "great-circle")]
 
 
 class PlanView(Vertical):
@@ -148,13 +148,18 @@ class PlanView(Vertical):
             head.update(f"Voyage {voyage.name}: no plan yet.")
             return
         total = self.figures[-1].cumulative_m if self.figures else 0.0
-        gc = sum(f.gc_distance_m or 0.0 for f in self.figures)
-        rl = sum(f.rhumb_distance_m or 0.0 for f in self.figures)
+        def total_of(attr: str) -> str:
+            values = [getattr(f, attr) for f in self.figures[1:]]
+            if not values or any(v is None for v in values):
+                return fmt.DASH
+            return f"{sum(values) / NM_M:.1f}"
+
+        gc, rl = total_of("gc_distance_m"), total_of("rhumb_distance_m")
         rev = route.revision if route is not None and route.revision is not None else "–"
         state = "  [b]edited, not saved (Ctrl+S)[/b]" if self.dirty else ""
         head.update(
             f"[b]{route.name if route else 'plan'}[/b] rev {rev}  {len(self.rows)} WP  "
-            f"{total / NM_M:.1f} NM as planned (all GC {gc / NM_M:.1f}, all RL {rl / NM_M:.1f})  "
+            f"{total / NM_M:.1f} NM as planned (all GC {gc}, all RL {rl})  "
             f"dep {fmt.utc_time(voyage.departure_utc)}  ZD {fmt.zd_text(voyage.zd_minutes)}"
             f"{state}"
         )

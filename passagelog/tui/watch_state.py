@@ -140,5 +140,8 @@ def alerts_for(state: WatchState, now_s: float,
 
 def _hm(seconds: float) -> str:
     minutes = int(round(seconds / 60.0))
+    d, minutes = divmod(minutes, 1440)
     h, m = divmod(minutes, 60)
+    if d:
+        return f"{d}d {h}h{m:02d}"
     return f"{h}h{m:02d}" if h else f"{m} min"

@@ -77,8 +77,8 @@ class WatchView(Vertical, can_focus=True):
             s.reload_route() if hasattr(s, "reload_route") else None
             state = compute_watch(s.route, s.fix_arrays(), zd_minutes=s.zd_minutes,
                                   entries=s.entries(), settings=self.settings)
-        except PassagelogError as exc:
-            state = WatchState(None, note=f"Cannot reconcile: {exc}")
+        except Exception as exc:  # noqa: BLE001 - shown in the view; the watch goes on
+            state = WatchState(None, note=f"Cannot reconcile the latest fixes: {exc}")
         self.app.call_from_thread(self._show, state)
 
     def _show(self, state: WatchState) -> None:
@@ -160,10 +160,12 @@ class WatchView(Vertical, can_focus=True):
         box = self.query_one("#watch-alerts", Static)
         alerts = self.current_alerts()
         if not alerts:
-            box.update(Text("No alerts.", style="dim") if self.state and self.state.status
-                       else "")
+            has_state = bool(self.state and self.state.status)
+            box.update(Text("No alerts.", style="dim") if has_state else "")
+            box.display = has_state
             box.remove_class("-alert")
             return
+        box.display = True
         text = Text()
         for i, a in enumerate(alerts):
             if i:

@@ -1,0 +1,63 @@
+"""Review: open it on a voyage with a known excursion outside the limit."""
+
+from __future__ import annotations
+
+from datetime import datetime, timedelta, timezone
+
+import pytest
+
+from passagelog.model import Fix
+from passagelog.tui.app import PassagelogApp
+
+pytest.importorskip("passagelog.review.engine")
+
+NM = 1852.0
+
+
+def point_off_leg(route, k, along_m, xte_m):
+    """``xte_m`` right (+) of leg k at ``along_m``: the foot on the geodesic, then the
+    geodesic direct problem at right angles to it (geographiclib)."""
+    from passagelog.nav.geodesic import direct, inverse
+    from passagelog.nav.legs import make_leg
+
+    a, b = route.waypoints[k - 1], route.waypoints[k]
+    lat, lon = make_leg(a.lat, a.lon, b.lat, b.lon, "great-circle").point_at(along_m)
+    _s, course, _ = inverse(lat, lon, b.lat, b.lon)
+    return direct(lat, lon, (course + (90.0 if xte_m >= 0 else -90.0)) % 360.0, abs(xte_m))[:2]
+
+
+async def test_review_shows_the_excursion_and_the_plots(session):
+    route = session.route
+    t = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
+    # leg 2 at 12 kn (12 NM an hour): hours 0-9 inside, 3-5 at 2.5 NM starboard (limit 2 NM)
+    for h in range(10):
+        xte = 2.5 * NM if 3 <= h <= 5 else 0.2 * NM
+        lat, lon = point_off_leg(route, 2, (10 + 12 * h) * NM, xte)
+        session.add_fix(Fix(t + timedelta(hours=h), lat, lon))
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f5")
+        view = app.query_one("#review-view")
+        for _ in range(100):
+            await pilot.pause(0.05)
+            if view.computed:
+                break
+        assert view.computed == 1
+        episodes = view.review.episodes
+        assert len(episodes) == 1
+        ep = episodes[0]
+        assert (ep.leg, ep.side) == (2, "starboard")
+        assert ep.max_abs_xte_m == pytest.approx(2.5 * NM, abs=0.01)  # built at 2.5 NM
+        table = app.query_one("#review-table-episodes")
+        assert table.row_count == 1
+        row = [str(c) for c in table.get_row_at(0)]
+        assert row[:2] == ["2", "starboard"] and row[5] == "2.50" and row[6] == "2.00"
+        app.query_one("#review-tabs").active = "review-xte"
+        await pilot.pause()
+        chart = app.query_one("#review-xte-chart")
+        text = chart.render().plain
+        assert "2.75S" in text  # the scale: 1.1 x the largest |XTE| (2.5 NM)
+        assert any(0x2800 < ord(ch) <= 0x28FF for ch in text)
+        app.query_one("#review-tabs").active = "review-track"
+        await pilot.pause()
+        assert "10 fixes, 4 waypoints" in app.query_one("#review-track-chart").render().plain
