@@ -142,6 +142,38 @@ def test_eta_two_ways_and_delay_against_the_schedule():
     assert r1["eta_dest_smg_utc"] == "2026-03-01T15:00:00Z"
 
 
+# ------------------------------------------------------------------------ set and drift
+
+
+def test_set_and_drift_from_dr_and_fix_hand_worked():
+    """(common practice) Steering 000 at 10 kn from 10 00'N 20 00'W, the DR after one hour is
+    10 10'N 20 00'W (10' of latitude = 10 NM on the sphere of 1' = 1 NM). The fix is 2' of
+    longitude east of the DR: a departure of 2 cos(10 10') NM along the parallel, so the
+    current sets 090 at 2 cos(10 10') = 1.9686 kn."""
+    route = syn.route([(10.0, -20.0), (11.0, -20.0)])
+    t0 = _utc(2026, 3, 1).timestamp()
+    lats, lons = [10.0], [-20.0]
+    for h in range(1, 4):
+        lats.append(10.0 + h * 10.0 / 60.0)
+        lons.append(-20.0 + h * 2.0 / 60.0)
+    cols = syn.columns(t0 + 3600.0 * np.arange(4), lats, lons,
+                       heading=np.zeros(4), stw_kn=np.full(4, 10.0))
+    rv = reconcile(route, cols, earth=SPHERE_NM)
+    fx = rv.fixes
+    assert math.isnan(fx.set[0])
+    for i in range(1, 4):
+        expect = 2.0 * math.cos(math.radians(lats[i]))
+        assert fx.set[i] == pytest.approx(90.0, abs=1e-9)
+        assert fx.drift_kn[i] == pytest.approx(expect, rel=1e-9)
+    assert fx.drift_kn[1] == pytest.approx(1.9686, abs=5e-5)
+    leg = rv.legs[0]
+    assert leg.set_fixes == 3 and leg.set == pytest.approx(90.0, abs=1e-9)
+    assert leg.drift_kn == pytest.approx(np.mean([2 * math.cos(math.radians(x))
+                                                  for x in lats[1:]]), rel=1e-9)
+    st_ = rv.status()
+    assert st_.set == pytest.approx(90.0, abs=1e-9)
+
+
 # ------------------------------------------------------------------------ plan revisions
 
 
@@ -183,8 +215,9 @@ def test_plan_revision_mid_voyage(matched):
 # ----------------------------------------------------------------------- the antimeridian
 
 
-def test_track_across_the_antimeridian():
-    route = syn.route([(10.0, 179.0), (10.5, -179.0), (12.0, -178.0)])
+@pytest.mark.parametrize("sailing", ["great-circle", "rhumb"])
+def test_track_across_the_antimeridian(sailing):
+    route = syn.route([(10.0, 179.0), (10.5, -179.0), (12.0, -178.0)], sailings=[sailing] * 2)
     legs = syn.legs_of(route)
     L0 = legs[0].distance_m
     plan = [(0, s, x) for s, x in zip(np.linspace(0, L0 - 2000, 9),
@@ -206,9 +239,9 @@ def test_track_across_the_antimeridian():
 @settings(max_examples=30, deadline=None)
 @given(lat=st.floats(-60, 60), lon=st.floats(-180, 179.99), course=st.floats(0, 359.9),
        length_km=st.floats(20, 800), frac=st.floats(0.05, 0.9), xf=st.floats(-1, 1),
-       turn=st.floats(-120, 120))
+       turn=st.floats(-120, 120), sailing=st.sampled_from(["great-circle", "rhumb"]))
 def test_a_fix_built_at_a_known_offset_is_read_back(lat, lon, course, length_km, frac, xf,
-                                                    turn):
+                                                    turn, sailing):
     """Off by at most a quarter of the distance to go (and 5 km), the fix stays short of
     the bisector at the next waypoint for any alteration up to 120 degrees, so it is on
     leg 1 with the offsets it was built with."""
@@ -216,7 +249,8 @@ def test_a_fix_built_at_a_known_offset_is_read_back(lat, lon, course, length_km,
 
     lat2, lon2, azi2 = direct(lat, lon, course, length_km * 1000.0)
     lat3, lon3, _ = direct(lat2, lon2, azi2 + turn, 50_000.0)
-    route = syn.route([(lat, lon), (lat2, lon2), (lat3, lon3)], xtl_m=2500.0)
+    route = syn.route([(lat, lon), (lat2, lon2), (lat3, lon3)], xtl_m=2500.0,
+                      sailings=[sailing, "great-circle"])
     legs = syn.legs_of(route)
     s = frac * legs[0].distance_m
     xte = xf * min(5000.0, 0.25 * (legs[0].distance_m - s))
