@@ -315,7 +315,7 @@ def parse_wind(text: str) -> tuple[float, float]:
 @json_option
 def wind(true_course, tas_kn, wind_text, true_heading, track, gs_kn, variation, deviation,
          distance_nm, as_json):
-    """The wind triangle.
+    """Wind triangle: heading and ground speed to make good a course, or the wind found.
 
     With --course, --tas and --wind: wind correction angle (+ right, - left), true heading and
     ground speed. JSON keys: true_course, true_heading, wca, ground_speed_kn, tas_kn,
