@@ -199,8 +199,8 @@ class FixReader:
     Options: ``thin_s`` keeps one fix per that many seconds (a fix is kept when it is at
     least ``thin_s`` after the last one kept); ``talkers`` (NMEA) keeps only those talkers,
     preferred in that order; ``require_checksum`` (NMEA, default True); ``start_date``
-    (NMEA) dates a log that has only GGA/GLL; ``progress(chars_read)`` is called now and
-    then (NMEA).
+    (NMEA) dates a log that has only GGA/GLL; ``progress(bytes_read)`` is called now and
+    then while a file is read.
     """
 
     def __init__(self, source: Source, *, fmt: str | None = None, thin_s: float | None = None,
@@ -216,6 +216,24 @@ class FixReader:
                              start_date=start_date, progress=progress)
         self._used = False
 
+    def _open(self, encoding: str | None, newline: str | None) -> IO:
+        """The source as text (or binary when ``encoding`` is None), counting bytes read
+        for ``progress`` when it is a file."""
+        if self._stream is not None:
+            if encoding is None:
+                return _binary(self._source, self._stream)
+            return self._stream
+        try:
+            raw: IO[bytes] = open(self._source, "rb")  # type: ignore[arg-type]
+        except OSError as exc:
+            raise FormatError(f"cannot open the file: {exc.strerror}", where=self.name) from None
+        progress = self._options["progress"]
+        if progress is not None:
+            raw = io.BufferedReader(_Counting(raw, progress), 1 << 16)  # type: ignore[arg-type]
+        if encoding is None:
+            return raw
+        return io.TextIOWrapper(raw, encoding=encoding, newline=newline)  # type: ignore[arg-type]
+
     def __iter__(self) -> Iterator[Fix]:
         if self._used:
             raise RuntimeError("a FixReader is read once; make a new one to read again")
@@ -224,32 +242,52 @@ class FixReader:
         if self.fmt == "nmea":
             from passagelog.formats.nmea import NmeaReader
 
-            fh, close = (self._stream, False) if self._stream is not None else open_text(
-                self._source, encoding="latin-1", newline="\n")
+            fh = self._open("latin-1", "\n")
             try:
                 yield from NmeaReader(fh, self.summary, thin_s=opts["thin_s"],
                                       talkers=opts["talkers"],
                                       require_checksum=opts["require_checksum"],
-                                      start_date=opts["start_date"],
-                                      progress=opts["progress"])
+                                      start_date=opts["start_date"])
             finally:
-                if close:
+                if fh is not self._stream:
                     fh.close()
         elif self.fmt == "fix-csv":
             from passagelog.formats.csvfmt import iter_fix_csv
 
-            fh, close = (self._stream, False) if self._stream is not None else open_text(
-                self._source, encoding="utf-8-sig", newline="")
+            fh = self._open("utf-8-sig", "")
             try:
                 yield from iter_fix_csv(fh, self.name, self.summary, thin_s=opts["thin_s"])
             finally:
-                if close:
+                if fh is not self._stream:
                     fh.close()
         else:
             from passagelog.formats.gpx import iter_gpx_fixes
 
-            with _binary(self._source, self._stream) as fh:
+            with self._open(None, None) as fh:
                 yield from iter_gpx_fixes(fh, self.name, self.summary, thin_s=opts["thin_s"])
+
+
+class _Counting(io.RawIOBase):
+    """A binary file that reports the bytes read so far to ``callback``."""
+
+    def __init__(self, fh: IO[bytes], callback: Callable[[int], None]):
+        self._fh = fh
+        self._callback = callback
+        self.count = 0
+
+    def readable(self) -> bool:
+        return True
+
+    def readinto(self, buffer) -> int:  # type: ignore[override]
+        n = self._fh.readinto(buffer)  # type: ignore[attr-defined]
+        if n:
+            self.count += n
+            self._callback(self.count)
+        return n
+
+    def close(self) -> None:
+        self._fh.close()
+        super().close()
 
 
 def iter_fixes(source: Source, *, fmt: str | None = None, **options) -> FixReader:

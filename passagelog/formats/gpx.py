@@ -136,6 +136,8 @@ def _events(fh: IO[bytes], name: str) -> Iterator[tuple[str, ET.Element, _Walker
         line, col = exc.position
         raise FormatError(f"not well-formed XML ({exc})",
                           where=f"{name}, line {line}, column {col + 1}") from None
+    except (LookupError, ValueError) as exc:  # an XML declaration naming an unreadable encoding
+        raise FormatError(f"cannot be read as XML ({exc})", where=name) from None
 
 
 def _child_text(elem: ET.Element, ns: str, local: str) -> str | None:

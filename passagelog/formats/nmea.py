@@ -30,10 +30,11 @@ from __future__ import annotations
 import math
 from collections import deque
 from datetime import date, datetime, timedelta, timezone
-from typing import IO, Callable, Iterable, Iterator, Sequence
+from typing import IO, Iterable, Iterator, Sequence
 
 import pynmea2
 
+from passagelog.errors import InputError
 from passagelog.formats._common import ReadSummary
 from passagelog.model import Fix
 
@@ -218,13 +219,12 @@ class NmeaReader:
     keeps only those talkers, best first; by default every talker is used and
     :data:`DEFAULT_TALKER_ORDER` decides between them. ``require_checksum=False`` accepts
     sentences without ``*hh`` (a bad checksum is always rejected). ``start_date`` dates a
-    log of GGA/GLL alone. ``progress`` is called now and then with the characters read.
+    log of GGA/GLL alone.
     """
 
     def __init__(self, lines: Iterable[str], summary: ReadSummary, *,
                  thin_s: float | None = None, talkers: Sequence[str] | None = None,
-                 require_checksum: bool = True, start_date: date | None = None,
-                 progress: Callable[[int], None] | None = None):
+                 require_checksum: bool = True, start_date: date | None = None):
         self._lines = lines
         self.summary = summary
         self._thin_ms = None if not thin_s else int(round(thin_s * 1000))
@@ -238,7 +238,6 @@ class NmeaReader:
         self._require_checksum = require_checksum
         self._date = start_date
         self._last_tod: int | None = None
-        self._progress = progress
 
     # -- per-line helpers (slow paths) --------------------------------------------------
 
@@ -308,14 +307,9 @@ class NmeaReader:
         pending: deque[_Epoch] = deque()
         state = {"kept_ms": None, "recent": set(), "order": deque(), "base_date": None,
                  "base": None, "base_ms": 0}
-        chars = 0
-        progress = self._progress
         no = 0
         for raw in self._lines:
             no += 1
-            chars += len(raw)
-            if progress is not None and not no & 0xFFF:
-                progress(chars)
             line = raw.rstrip("\r\n")
             if not line.strip():
                 summary.blank_lines += 1
@@ -520,8 +514,6 @@ class NmeaReader:
             summary.reject("no date (no RMC or ZDA before it)", held.first_line,
                            len(held.lines) + len(held.aux))
         pending.clear()
-        if progress is not None:
-            progress(chars)
         summary.lines_read = no
         yield from out
 
@@ -581,8 +573,12 @@ class NmeaReader:
             return
         t = state["base"] + timedelta(milliseconds=ms)
         source = ep.lines[0] if used == 1 else "\n".join(ep.lines + ep.aux)
-        fix = Fix(t, ep.lat, ep.lon, hdop=ep.hdop, satellites=ep.sats, fix_mode=ep.mode,
-                  cog=ep.cog, sog_kn=ep.sog, heading=ep.heading, source=source)
+        try:
+            fix = Fix(t, ep.lat, ep.lon, hdop=ep.hdop, satellites=ep.sats, fix_mode=ep.mode,
+                      cog=ep.cog, sog_kn=ep.sog, heading=ep.heading, source=source)
+        except InputError as exc:  # the sentences were checked; this is a last guard
+            summary.reject(f"fix refused: {exc.reason}", ep.first_line, used)
+            return
         out.append(fix)
         state["kept_ms"] = stamp
         self._remember(stamp, state)
