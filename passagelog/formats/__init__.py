@@ -342,8 +342,17 @@ def write_fixes(fixes: Iterable[Fix], fmt: str, stream: IO[str], *, name: str = 
                       + ", ".join(FIX_FORMATS))
 
 
+def write_voyage(routes: Iterable[Route], fixes: Iterable[Fix], stream: IO[str], *,
+                 name: str = "") -> int:
+    """A voyage as one GPX 1.1 file: its plan route(s) as ``rte`` and its fixes as a
+    ``trk`` named ``name``; returns the number of fixes written."""
+    from passagelog.formats.gpx import write_gpx
+
+    return write_gpx(stream, routes=routes, fixes=fixes, track_name=name)
+
+
 __all__ = [
     "FORMATS", "ROUTE_FORMATS", "FIX_FORMATS", "ReadSummary", "FixReader",
     "detect_format", "check_format", "read_route", "read_routes", "iter_fixes",
-    "read_fixes", "write_route", "write_fixes",
+    "read_fixes", "write_route", "write_fixes", "write_voyage",
 ]

@@ -27,6 +27,7 @@ never resolves, so the name cannot collide with anybody's):
 
 from __future__ import annotations
 
+import re
 import xml.etree.ElementTree as ET
 from datetime import datetime, timezone
 from typing import IO, Iterable, Iterator
@@ -310,21 +311,37 @@ def _attrs(pairs: Iterable[tuple[str, str | None]]) -> dict[str, str]:
     return {k: v for k, v in pairs if v is not None and v != ""}
 
 
+_NOT_XML = re.compile("[\x00-\x08\x0b\x0c\x0e-\x1f\ufffe\uffff]")
+
+
+def xml_safe(text: str, what: str) -> str:
+    """``text`` if XML 1.0 can hold it; otherwise a FormatError naming ``what``."""
+    bad = _NOT_XML.search(text)
+    if bad:
+        raise FormatError(f"{what} {text!r} holds the control character "
+                          f"U+{ord(bad.group()):04X}, which XML cannot carry")
+    return text
+
+
+def _quote(value: str, what: str = "value") -> str:
+    return quoteattr(xml_safe(value, what))
+
+
 def _element(tag: str, attrs: dict[str, str]) -> str:
-    return f"<{tag}" + "".join(f" {k}={quoteattr(v)}" for k, v in attrs.items()) + "/>"
+    return f"<{tag}" + "".join(f" {k}={_quote(v, k)}" for k, v in attrs.items()) + "/>"
 
 
-def write_gpx_route(route: Route, stream: IO[str]) -> None:
-    """One route as GPX 1.1 ``rte`` (with passagelog's leg extension)."""
-    stream.write('<?xml version="1.0" encoding="UTF-8"?>\n'
-                 f'<gpx xmlns="{GPX11}" xmlns:{PREFIX}="{NS}" version="1.1" '
-                 'creator="passagelog">\n  <rte>\n'
-                 f"    <name>{escape(route.name)}</name>\n")
+def _num(value: float | None) -> str | None:
+    return None if value is None else decimal_text(value)
+
+
+def _write_rte(route: Route, stream: IO[str]) -> None:
+    stream.write(f"  <rte>\n    <name>{escape(xml_safe(route.name, 'route name'))}</name>\n")
     for i, wp in enumerate(route.waypoints):
         stream.write(f"    <rtept lat={quoteattr(decimal_text(wp.lat))} "
                      f"lon={quoteattr(decimal_text(wp.lon))}>")
         if wp.name:
-            stream.write(f"<name>{escape(wp.name)}</name>")
+            stream.write(f"<name>{escape(xml_safe(wp.name, 'waypoint name'))}</name>")
         ext: list[str] = []
         way = _attrs([("arrivalRadiusNm", _nm(wp.arrival_radius_m)),
                       ("rtzId", None if wp.rtz_id is None else str(wp.rtz_id)),
@@ -346,20 +363,13 @@ def write_gpx_route(route: Route, stream: IO[str]) -> None:
         if ext:
             stream.write("<extensions>" + "".join(ext) + "</extensions>")
         stream.write("</rtept>\n")
-    stream.write("  </rte>\n</gpx>\n")
+    stream.write("  </rte>\n")
 
 
-def _num(value: float | None) -> str | None:
-    return None if value is None else decimal_text(value)
-
-
-def write_gpx_track(fixes: Iterable[Fix], stream: IO[str], *, name: str = "") -> int:
-    """Fixes as one GPX 1.1 ``trk`` with one ``trkseg``, streamed; returns the count."""
-    stream.write('<?xml version="1.0" encoding="UTF-8"?>\n'
-                 f'<gpx xmlns="{GPX11}" xmlns:{PREFIX}="{NS}" version="1.1" '
-                 'creator="passagelog">\n  <trk>\n')
+def _write_trk(fixes: Iterable[Fix], stream: IO[str], name: str) -> int:
+    stream.write("  <trk>\n")
     if name:
-        stream.write(f"    <name>{escape(name)}</name>\n")
+        stream.write(f"    <name>{escape(xml_safe(name, 'track name'))}</name>\n")
     stream.write("    <trkseg>\n")
     count = 0
     for fix in fixes:
@@ -374,9 +384,32 @@ def write_gpx_track(fixes: Iterable[Fix], stream: IO[str], *, name: str = "") ->
                       ("cog", _num(fix.cog)), ("heading", _num(fix.heading)),
                       ("stwKn", _num(fix.stw_kn)), ("fixMode", fix.fix_mode),
                       ("remarks", fix.remarks)])
-        attrs = "".join(f" {k}={quoteattr(v)}" for k, v in ext.items())
-        parts.append(f"<extensions><{PREFIX}:fix{attrs}/></extensions></trkpt>\n")
+        parts.append(f"<extensions>{_element(PREFIX + ':fix', ext)}</extensions></trkpt>\n")
         stream.write("".join(parts))
         count += 1
-    stream.write("    </trkseg>\n  </trk>\n</gpx>\n")
+    stream.write("    </trkseg>\n  </trk>\n")
     return count
+
+
+def write_gpx(stream: IO[str], *, routes: Iterable[Route] = (),
+              fixes: Iterable[Fix] | None = None, track_name: str = "") -> int:
+    """One GPX 1.1 document: each route as ``rte``, then the fixes (if given) as one
+    ``trk`` with one ``trkseg``, streamed. Returns the number of fixes written."""
+    stream.write('<?xml version="1.0" encoding="UTF-8"?>\n'
+                 f'<gpx xmlns="{GPX11}" xmlns:{PREFIX}="{NS}" version="1.1" '
+                 'creator="passagelog">\n')
+    for route in routes:
+        _write_rte(route, stream)
+    count = 0 if fixes is None else _write_trk(fixes, stream, track_name)
+    stream.write("</gpx>\n")
+    return count
+
+
+def write_gpx_route(route: Route, stream: IO[str]) -> None:
+    """One route as GPX 1.1 ``rte`` (with passagelog's leg extension)."""
+    write_gpx(stream, routes=[route])
+
+
+def write_gpx_track(fixes: Iterable[Fix], stream: IO[str], *, name: str = "") -> int:
+    """Fixes as one GPX 1.1 ``trk`` with one ``trkseg``, streamed; returns the count."""
+    return write_gpx(stream, fixes=fixes, track_name=name)

@@ -467,10 +467,15 @@ def serialize(root: ET.Element, default_ns: str) -> str:
             return local
         return f"{prefix_of(uri)}:{local}"
 
+    from passagelog.formats.gpx import xml_safe
+
     for node in root.iter():
         qname(node.tag, False)
-        for key in node.attrib:
+        for key, value in node.attrib.items():
             qname(key, True)
+            xml_safe(value, _local(key)[1])
+        if node.text:
+            xml_safe(node.text, _local(node.tag)[1])
     parts: list[str] = []
 
     def write(node: ET.Element, top: bool) -> None:
