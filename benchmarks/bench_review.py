@@ -30,7 +30,7 @@ sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 from passagelog.model import LegPlan, Route, Waypoint  # noqa: E402
 from passagelog.nav.geodesic import direct, direct_np, inverse_np  # noqa: E402
 from passagelog.nav.legs import make_leg  # noqa: E402
-from passagelog.review import reconcile  # noqa: E402
+from passagelog.review import reconcile, watch  # noqa: E402
 
 T0 = 1_780_000_000.0  # 2026-05-28T20:26:40Z
 DAYS = 30
@@ -87,8 +87,8 @@ def build_track(route: Route, n: int, seed: int = 11) -> dict:
             "stw_kn": sog, "legs": legs, "k": k}
 
 
-def baseline_loop(route: Route, track: dict, count: int) -> float:
-    """Seconds per fix for a per-fix loop over geographiclib's Python API."""
+def baseline_loop(route: Route, track: dict, count: int) -> tuple[float, float]:
+    """Seconds per fix (wall, CPU) for a per-fix loop over geographiclib's Python API."""
     from geographiclib.geodesic import Geodesic
 
     g = Geodesic.WGS84
@@ -97,7 +97,7 @@ def baseline_loop(route: Route, track: dict, count: int) -> float:
     lat, lon, t = track["lat"], track["lon"], track["time_s"]
     start = len(lat) // 3
     idx = range(start, start + count)
-    t0 = time.perf_counter()
+    t0, c0 = time.perf_counter(), time.process_time()
     for i in idx:
         kk = int(k[i])
         legs[kk].offset(float(lat[i]), float(lon[i]))
@@ -107,7 +107,7 @@ def baseline_loop(route: Route, track: dict, count: int) -> float:
         g.Inverse(lat[0], lon[0], lat[i], lon[i])
         j = int(np.searchsorted(t, t[i] - 3 * 3600.0))
         g.Inverse(lat[j], lon[j], lat[i], lon[i])
-    return (time.perf_counter() - t0) / count
+    return (time.perf_counter() - t0) / count, (time.process_time() - c0) / count
 
 
 def main(argv=None) -> int:
@@ -119,7 +119,7 @@ def main(argv=None) -> int:
 
     route = build_plan()
     track = build_track(route, args.fixes)
-    cols = {key: track[key] for key in ("time_s", "lat", "lon")}
+    cols = {key: track[key] for key in ("time_s", "lat", "lon", "heading", "stw_kn")}
     rss0 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
 
     t0, c0 = time.perf_counter(), time.process_time()
@@ -128,12 +128,18 @@ def main(argv=None) -> int:
     rss1 = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
 
     t0, c0 = time.perf_counter(), time.process_time()
+    st = watch(route, cols)
+    watch_s, watch_cpu = time.perf_counter() - t0, time.process_time() - c0
+    assert st == rv.status(), "the watch summary must equal the full review's"
+
+    t0, c0 = time.perf_counter(), time.process_time()
     inverse_np(track["lat"], track["lon"], route.waypoints[-1].lat, route.waypoints[-1].lon)
     floor, floor_cpu = time.perf_counter() - t0, time.process_time() - c0
 
-    per_fix_loop = baseline_loop(route, track, args.subset)
+    per_fix_loop, per_fix_loop_cpu = baseline_loop(route, track, args.subset)
     per_fix = wall / args.fixes
     ratio = per_fix_loop / per_fix
+    ratio_cpu = per_fix_loop_cpu / (cpu / args.fixes)
     sailings = sorted({p.sailing for p in route.legs})
     res = {
         "fixes": args.fixes, "waypoints": len(route.waypoints), "sailings": sailings,
@@ -141,12 +147,13 @@ def main(argv=None) -> int:
         "wall_s": round(wall, 3), "cpu_s": round(cpu, 3), "us_per_fix": round(per_fix * 1e6, 3),
         "peak_rss_mb": round(rss1, 1), "rss_before_mb": round(rss0, 1),
         "loop_us_per_fix": round(per_fix_loop * 1e6, 1), "loop_subset": args.subset,
-        "speedup_vs_loop": round(ratio, 1),
-        "floor_one_inverse_s": round(floor, 3),
+        "speedup_vs_loop": round(ratio, 1), "speedup_vs_loop_cpu": round(ratio_cpu, 1),
+        "floor_one_inverse_s": round(floor, 3), "watch_latest_fix_s": round(watch_s, 3),
+        "watch_latest_fix_cpu_s": round(watch_cpu, 3),
         "x_floor": round(wall / floor, 2), "x_floor_cpu": round(cpu / floor_cpu, 2),
         "load_average_1min": round(__import__("os").getloadavg()[0], 2),
         "targets": {"wall_s<=10": wall <= 10.0, "peak_mb<=1536": rss1 <= 1536.0,
-                    "speedup>=100": ratio >= 100.0},
+                    "speedup>=100 (CPU time, both measured here)": ratio_cpu >= 100.0},
     }
     if args.json:
         print(json.dumps(res))
@@ -158,7 +165,10 @@ def main(argv=None) -> int:
               f"noon rows {len(rv.noon)}")
         print(f"  peak RSS of the process {rss1:.0f} MB (before reconcile {rss0:.0f} MB)")
         print(f"  per-fix loop over geographiclib (subset of {args.subset}): "
-              f"{per_fix_loop * 1e6:.0f} us/fix -> engine is {ratio:.0f}x faster")
+              f"{per_fix_loop * 1e6:.0f} us/fix -> engine is {ratio:.0f}x faster by wall time, "
+              f"{ratio_cpu:.0f}x by CPU time")
+        print(f"  watch summary of the latest fix (state machine over all, figures over the "
+              f"last window): {watch_s:.2f} s ({watch_cpu:.2f} s CPU)")
         print(f"  floor, one vectorised geodesic inverse per fix: {floor:.2f} s "
               f"({floor / args.fixes * 1e6:.2f} us/fix); engine = {wall / floor:.1f}x floor "
               f"(CPU: {cpu / floor_cpu:.1f}x)")

@@ -4,11 +4,12 @@
 >>> review.fixes.xte_m          # numpy column, one value per valid fix in time order
 >>> review.rows("legs")         # table rows (dicts with stable keys)
 >>> review.status()             # the latest fix, as a watch officer wants it
+>>> watch(route, fixes)         # the same, quicker on a long voyage
 
 Imports only the navigation core and the domain model: no SQL, no files.
 """
 
-from passagelog.review.engine import DEFAULT_GAP_S, DEFAULT_WINDOW_S, reconcile
+from passagelog.review.engine import DEFAULT_GAP_S, DEFAULT_WINDOW_S, reconcile, watch
 from passagelog.review.inputs import FixArrays, as_fix_arrays, clocks_from, from_fixes
 from passagelog.review.noon import ship_noons
 from passagelog.review.results import (
@@ -28,7 +29,7 @@ from passagelog.review.results import (
 from passagelog.review.status import Status
 
 __all__ = [
-    "reconcile", "DEFAULT_WINDOW_S", "DEFAULT_GAP_S", "FixArrays", "as_fix_arrays",
+    "reconcile", "watch", "DEFAULT_WINDOW_S", "DEFAULT_GAP_S", "FixArrays", "as_fix_arrays",
     "from_fixes", "clocks_from", "ship_noons", "PHASES", "TABLES", "TABLE_COLUMNS",
     "Review", "FixResults", "Passage", "Episode", "LegStats", "NoonFigures", "Gap",
     "SuspectFix", "Status", "zone_text",

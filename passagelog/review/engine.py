@@ -269,7 +269,8 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
               skip_distance_m: float | None = None,
               default_speed_kn: float | None = None,
               schedule: Mapping[int, Sequence[Any]] | Sequence[Any] | None = None,
-              earth: Earth | str = WGS84) -> Review:
+              earth: Earth | str = WGS84,
+              detail_from_utc: datetime | float | None = None) -> Review:
     """Reconcile ``fixes`` with ``plan`` and return the :class:`Review`.
 
     ``plan``: a Route, or ``[(from_utc, Route), ...]`` for revisions in force from a time.
@@ -288,6 +289,11 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     legs that have none. ``schedule``: scheduled time per waypoint (one list for a single
     route, or ``{revision: list}``), overriding the route's own. ``earth``: figure for all
     distances (WGS84).
+
+    ``detail_from_utc`` (for a watch display on a long voyage): the leg state machine still
+    runs over every fix, but the per-fix figures are computed only for fixes from that time
+    on (NaN before it, ``inside_xtl`` False), the engine's own speed check looks only there,
+    and the leg table, episodes and noon figures are left empty (``Review.detail_from_s``).
     """
     earth = get_earth(earth)
     entries = list(entries)
@@ -313,24 +319,29 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     lat = f.lat
     lon = (f.lon + 180.0) % 360.0 - 180.0
 
+    detail_s = to_seconds(detail_from_utc, "detail start time")
+    d0 = int(np.searchsorted(t, detail_s, side="left")) if detail_s is not None else 0
+
     # ---------------------------------------------------------------- suspects
     suspect = f.suspect.copy()
     reason = np.where(suspect, "logbook", "")
     implied = np.full(n, np.nan)
     step_d = np.full(n, np.nan)  # geodesic from the fix before, for every fix
     step_az = np.full(n, np.nan)
-    if n > 1:
-        d, az, _ = inverse_np(lat[:-1], lon[:-1], lat[1:], lon[1:], earth)
-        step_d[1:] = d
-        step_az[1:] = az
-        dt = np.diff(t)
+    s0 = max(d0, 1)
+    if n > s0:
+        d, az, _ = inverse_np(lat[s0 - 1:-1], lon[s0 - 1:-1], lat[s0:], lon[s0:], earth)
+        step_d[s0:] = d
+        step_az[s0:] = az
+        dt = np.diff(t[s0 - 1:])
         with np.errstate(divide="ignore", invalid="ignore"):
-            implied[1:] = np.where(dt > 0, d / dt / KN_MPS, np.where(d > 0, np.inf, 0.0))
+            implied[s0:] = np.where(dt > 0, d / dt / KN_MPS, np.where(d > 0, np.inf, 0.0))
     if max_speed_kn is not None and n > 1:
         # against the previous good fix: sequential (one wild fix must not condemn the next
         # one), but only where something happens: at fast steps and after flagged fixes
         events = np.flatnonzero((implied > max_speed_kn) | np.concatenate([[False],
                                                                             suspect[:-1]]))
+        events = events[events >= d0]
         i = int(events[0]) if events.size else n
         last = i - 1
         while last >= 0 and suspect[last]:
@@ -472,6 +483,9 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         starts = np.concatenate([[0], cuts])
         ends = np.concatenate([cuts, [n]])
         for a, b in zip(starts.tolist(), ends.tolist()):
+            if b <= d0:
+                continue
+            a = max(a, d0)
             rp = plans[int(rev_of[a])]
             leg = rp.legs[int(leg0[a])]
             x, al = leg.offsets_np(lat[a:b], lon[a:b])
@@ -508,6 +522,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     cmg_prev = np.full(n, np.nan)
     smg_prev = np.full(n, np.nan)
     dist_prev = np.full(n, np.nan)
+    has_prev &= np.arange(n) >= d0
     if has_prev.any():
         ii = np.flatnonzero(has_prev)
         pp = prev[ii]
@@ -532,7 +547,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     cand = np.flatnonzero(good & (phase != BEFORE_DEPARTURE))
     if cand.size:
         dep_fix = int(cand[0])
-        after = np.arange(dep_fix, n)
+        after = np.arange(max(dep_fix, d0), n)
         d, a1, _ = inverse_np(lat[dep_fix], lon[dep_fix], lat[after], lon[after], earth)
         el = t[after] - t[dep_fix]
         dmg_dep[after] = d
@@ -623,13 +638,16 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         ))
         prev_pass = i
 
-    episodes = _episodes(fr, can_count)
-    legs = _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth,
-                      revisions)
     gaps = _gaps(fr, gap_s, earth)
-    from passagelog.review.noon import noon_figures
+    if d0 == 0:
+        from passagelog.review.noon import noon_figures
 
-    noon = noon_figures(fr, plans, clocks, good, dep_fix, dep_s, arr_s, gap_s, earth)
+        episodes = _episodes(fr, can_count)
+        legs = _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth,
+                          revisions)
+        noon = noon_figures(fr, plans, clocks, good, dep_fix, dep_s, arr_s, gap_s, earth)
+    else:
+        episodes, legs, noon = [], [], []
     suspects = tuple(
         SuspectFix(fix=int(i), time_s=float(t[i]), lat=float(lat[i]), lon=float(lon[i]),
                    implied_speed_kn=float(implied[i]) if np.isfinite(implied[i]) else None,
@@ -646,7 +664,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         routes=tuple(r.route for r in revisions),
         revision_from_s=tuple(r.from_s for r in revisions), departure_s=dep_s,
         arrival_s=arr_s, departure_fix=dep_fix, settings=settings,
-        invalid_fixes=int((~valid).sum()),
+        invalid_fixes=int((~valid).sum()), detail_from_s=detail_s if d0 > 0 else None,
     )
 
 
@@ -822,3 +840,17 @@ def _gaps(fr: FixResults, gap_s: float, earth: Earth) -> list[Gap]:
             leg=int(fr.leg[i]), first_fix=i,
         ))
     return out
+
+
+def watch(plan, fixes, *, window_s: float = DEFAULT_WINDOW_S, **options):
+    """The watch summary (:class:`~passagelog.review.status.Status`) of the latest fix.
+
+    The same as ``reconcile(plan, fixes, ...).status()`` but quicker on a long voyage: the
+    per-fix figures are computed only over the last window (see ``detail_from_utc``)."""
+    raw = as_fix_arrays(fixes)
+    t = raw.time_s[np.isfinite(raw.time_s)]
+    if t.size == 0:
+        raise InputError("there are no fixes to report against the plan")
+    start = float(t.max()) - window_s - 60.0
+    rv = reconcile(plan, raw, window_s=window_s, detail_from_utc=start, **options)
+    return rv.status()

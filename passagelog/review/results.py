@@ -402,6 +402,7 @@ class Review:
     departure_fix: int | None
     settings: Settings
     invalid_fixes: int = 0
+    detail_from_s: float | None = None  # per-fix figures only from this time (watch mode)
 
     # -------------------------------------------------------------------------- tables
     def iter_rows(self, table: str) -> Iterator[dict]:

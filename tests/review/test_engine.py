@@ -336,3 +336,22 @@ def test_status_of_the_latest_fix_even_when_it_is_suspect():
     assert good.cmg_window == pytest.approx(rv.fixes.cmg_dep[2], abs=1e-9)
     with pytest.raises(InputError, match="fix row 9 does not exist"):
         rv.status(9)
+
+
+def test_watch_gives_the_status_of_the_full_review(voyage):
+    from passagelog.review import watch
+
+    route, legs, L, plan, cols, rv = voyage
+    full = rv.status()
+    quick = watch(route, cols)
+    assert quick == full
+    # and in the middle of the voyage, with heading and speed through the water logged
+    n = 9
+    part = {k: v[:n] for k, v in cols.items()}
+    part["heading"] = np.full(n, 225.0)
+    part["stw_kn"] = np.full(n, 30.0)
+    assert watch(route, part, window_s=7200.0) == reconcile(route, part,
+                                                             window_s=7200.0).status()
+    rv_d = reconcile(route, part, detail_from_utc=cols["time_s"][6])
+    assert math.isnan(rv_d.fixes.xte_m[5]) and not math.isnan(rv_d.fixes.xte_m[6])
+    assert rv_d.legs == () and rv_d.episodes == () and rv_d.detail_from_s == cols["time_s"][6]
