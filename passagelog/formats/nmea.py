@@ -372,7 +372,7 @@ class NmeaReader:
                     lat = _lat(fields[2], fields[3], "GGA")
                     lon = _lon(fields[4], fields[5], "GGA")
                     sats_text = fields[7]
-                    if sats_text and not sats_text.isdigit():
+                    if sats_text and (not sats_text.isdigit() or len(sats_text) > 3):
                         raise _Bad("GGA satellites")
                     sats = int(sats_text) if sats_text else None
                     hdop = _num(fields[8], "GGA HDOP")

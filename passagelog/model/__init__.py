@@ -20,6 +20,8 @@ from passagelog.errors import InputError
 SAILINGS = ("great-circle", "rhumb")
 CRAFT_KINDS = ("ship", "aircraft")
 FIX_METHODS = ("gnss", "radar", "visual", "celestial", "dr", "ep", "other")
+#: Satellites a fix may claim: every GNSS constellation together has under 200 in orbit.
+MAX_SATELLITES = 999
 ENTRY_KINDS = (
     "departure",
     "arrival",
@@ -389,9 +391,10 @@ class Fix:
         check_choice("fix", "method", self.method, FIX_METHODS)
         _finite("fix", "HDOP", self.hdop, low=0.0)
         if self.satellites is not None and (
-            not isinstance(self.satellites, int) or self.satellites < 0
+            not isinstance(self.satellites, int) or not 0 <= self.satellites <= MAX_SATELLITES
         ):
-            raise InputError(f"fix satellites {self.satellites!r} must be a whole number >= 0")
+            raise InputError(f"fix satellites {self.satellites!r} must be a whole number from 0 "
+                             f"to {MAX_SATELLITES}")
         _finite("fix", "COG", self.cog, low=0.0, high=360.0, high_open=True)
         _finite("fix", "SOG (kn)", self.sog_kn, low=0.0)
         _finite("fix", "heading", self.heading, low=0.0, high=360.0, high_open=True)

@@ -66,6 +66,15 @@ def _f(value: Any) -> float | None:
     return None if value is None else float(value) + 0.0
 
 
+_INT64_MAX = 2**63 - 1
+
+
+def _too_big(params: Sequence[Any]) -> Any:
+    """The first parameter SQLite cannot hold as a 64-bit integer (for messages)."""
+    return next((p for p in params if isinstance(p, int) and not -_INT64_MAX - 1 <= p
+                 <= _INT64_MAX), "given")
+
+
 def _extras_json(extras: tuple[tuple[str, str], ...]) -> str:
     return json.dumps([list(p) for p in extras], ensure_ascii=False, separators=(",", ":"))
 
@@ -166,6 +175,9 @@ class VerifyReport:
 
     records: dict[str, int]
     findings: tuple[Finding, ...] = ()
+    #: chain -> (last record id, its SHA-256 as hex) from ``chain_head``: note it outside the
+    #: file to make a later rewrite of the whole chain detectable
+    heads: dict[str, tuple[int, str]] = field(default_factory=dict)
 
     @property
     def ok(self) -> bool:
@@ -313,13 +325,20 @@ class Logbook:
             self._conn.execute("COMMIT")
 
     def _q(self, sql: str, params: Sequence[Any] = ()) -> list[tuple]:
-        return self._conn.execute(sql, params).fetchall()
+        try:
+            return self._conn.execute(sql, params).fetchall()
+        except OverflowError:  # an id beyond SQLite's 64-bit integers matches nothing
+            raise NotFoundError(f"no record has the number {_too_big(params)}; ids are at "
+                                f"most {_INT64_MAX}") from None
 
     def _write(self, sql: str, params: Sequence[Any] = ()) -> sqlite3.Cursor:
         try:
             return self._conn.execute(sql, params)
         except sqlite3.IntegrityError as exc:
             raise StoreError(f"the logbook refused the record: {exc}") from None
+        except OverflowError:
+            raise InputError(f"the number {_too_big(params)} is too large for the logbook; "
+                             f"numbers are at most {_INT64_MAX}") from None
 
     def _now(self) -> str:
         return _iso(self._clock())
@@ -1039,7 +1058,8 @@ class Logbook:
                     findings.append(finding)
             if not any(f.chain == "fix" and f.kind != "trigger-missing" for f in findings):
                 findings.extend(self._check_cache())
-        return VerifyReport(records, tuple(findings))
+        return VerifyReport(records, tuple(findings),
+                            {c: (i, h.hex()) for c, (i, h) in heads.items()})
 
     def _walk(self, chain: str, head: tuple[int, bytes]) -> tuple[int, Finding | None]:
         cols = ch.CHAINS[chain]

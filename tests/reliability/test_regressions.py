@@ -2,10 +2,14 @@
 
 from __future__ import annotations
 
+from datetime import datetime, timezone
+
 import pytest
 
 from passagelog.errors import FormatError
 from passagelog.formats import read_fixes, read_routes
+
+T0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
 
 ROUTE_CSV = ("name,lat,lon,sailing,speed_kn,xtl_port_nm,xtl_stbd_nm,arrival_radius_nm,"
              "turn_radius_nm,notes\n")
@@ -57,3 +61,40 @@ def test_regression_nmea_zda_day_overflow(tmp_path):
     p.write_text(good + bad_zda)
     fixes, summary = read_fixes(p)
     assert len(fixes) == 1 and summary.rejected_at == {"bad field: ZDA date": [2]}
+
+
+def test_regression_store_huge_id(tmp_path):
+    # An id past SQLite's 64-bit integers (``--craft 1000000000000000000000000000000`` on the
+    # command line): OverflowError escaped the store. Now: not found / refused, nothing written.
+    from passagelog.errors import InputError, NotFoundError
+    from passagelog.model import Voyage
+    from passagelog.store import Logbook
+
+    huge = 10**30
+    with Logbook.open(tmp_path / "book.sqlite") as book:
+        v = book.add_voyage(Voyage("V"))
+        for call in (lambda: book.voyage(huge), lambda: book.craft(huge),
+                     lambda: book.plan(huge), lambda: book.fix(huge), lambda: book.entry(huge)):
+            with pytest.raises(NotFoundError, match=str(huge)):
+                call()
+        with pytest.raises((NotFoundError, InputError), match=str(huge)):
+            book.add_voyage(Voyage("W", craft_id=huge))
+        assert book.counts(v)["fixes"] == 0 and book.verify().ok
+        assert [x.name for x in book.list_voyages()] == ["V"]
+
+
+def test_regression_fix_satellites_beyond_int32(tmp_path):
+    # A GGA whose satellites field is 30 digits made a Fix the logbook's hash chain could not
+    # pack (struct.error). The model now bounds satellites, and the reader rejects the line.
+    from passagelog.errors import InputError
+    from passagelog.model import Fix
+
+    with pytest.raises(InputError, match="satellites"):
+        Fix(T0, 50.0, -1.0, satellites=10**30)
+    assert Fix(T0, 50.0, -1.0, satellites=64).satellites == 64
+    good = nmea("GPGGA,123519,4807.038,N,01131.000,E,1,08,0.9,545.4,M,46.9,M,,")
+    bad = nmea("GPGGA,123520,4807.038,N,01131.000,E,1," + "9" * 30 + ",0.9,545.4,M,46.9,M,,")
+    p = tmp_path / "log.nmea"
+    p.write_text(good + bad)
+    fixes, summary = read_fixes(p, start_date=T0.date())
+    assert len(fixes) == 1 and list(summary.rejected_at.values()) == [[2]]
