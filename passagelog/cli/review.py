@@ -133,10 +133,12 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
 
 
 def run_review(inputs: dict, window_h: float, gap_min: float, include_suspect: bool,
-               max_speed: float | None, arrival_radius: float | None):
-    from passagelog.review import reconcile
+               max_speed: float | None, arrival_radius: float | None, *,
+               latest_only: bool = False):
+    """The review (or, with ``latest_only``, the watch summary of the latest fix)."""
+    from passagelog.review import reconcile, watch
 
-    return reconcile(
+    return (watch if latest_only else reconcile)(
         inputs["plan"], inputs["fixes"], departure_utc=inputs["departure_utc"],
         planned_departure_utc=inputs["planned_departure_utc"],
         zd_minutes=inputs["zd_minutes"], entries=inputs["entries"],
@@ -396,8 +398,8 @@ def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
 
     inputs = load_inputs(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format,
                          departure, zd, clock_changes)
-    rv = run_review(inputs, window_h, gap_min, include_suspect, max_speed, arrival_radius)
-    st = rv.status()
+    st = run_review(inputs, window_h, gap_min, include_suspect, max_speed, arrival_radius,
+                    latest_only=True)
     if as_json:
         click.echo(json.dumps(st.row(), ensure_ascii=False, allow_nan=False))
         return
