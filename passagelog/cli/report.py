@@ -138,3 +138,74 @@ def navlog(ctx, voyage, plan_file, tas_kn, wind, variation, deviation, fuel_flow
         _write(html_document(title, [("Legs", body)], provenance=prov), output)
         return
     emit_records(records, columns, fmt, title=title, provenance=prov)
+
+
+def _verify_text(ctx: click.Context) -> str:
+    """The logbook's integrity check, in one line, for a report's provenance."""
+    from passagelog.cli.common import db_path_from
+    from passagelog.store import Logbook
+
+    with Logbook.open(db_path_from(ctx), create=False) as book:
+        rep = book.verify()
+    count = sum(rep.records.values())
+    if rep.ok:
+        return f"verify ok ({count} records in the chain)"
+    return f"VERIFY FAILED: {rep.first.message}"
+
+
+def _voyage_command():
+    from passagelog.cli.review import _input_options
+
+    @report.command("voyage")
+    @_input_options
+    @click.option("--center", "center_wp", type=click.IntRange(min=1), metavar="N",
+                  help="Waypoint number to centre the range view on (default: the last).")
+    @click.option("-o", "--output", metavar="FILE", default="-", show_default=True,
+                  help="HTML file to write ('-' for stdout).")
+    @click.pass_context
+    def voyage(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, departure, zd,
+               clock_changes, window_h, gap_min, include_suspect, max_speed, arrival_radius,
+               center_wp, output):
+        """The voyage review report: one self-contained HTML file (prints well to PDF).
+
+        Header and provenance, the plan's leg table, per-leg deviation statistics, waypoint
+        passages, deviation episodes, noon figures, gaps and suspect fixes, and figures:
+        track against the plan (Mercator, corridors drawn), XTE and speed over time, and a
+        range view around a waypoint.
+
+        \b
+        passagelog report voyage "Velasca to Port Amberly" -o review.html
+        passagelog report voyage --plan route.rtz --fixes track.nmea -o review.html
+        """
+        from passagelog.cli.review import load_inputs, run_review
+        from passagelog.report.render import Provenance
+        from passagelog.report.voyage import VoyageHeader, voyage_report_html
+
+        inputs = load_inputs(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format,
+                             departure, zd, clock_changes)
+        rv = run_review(inputs, window_h, gap_min, include_suspect, max_speed,
+                        arrival_radius)
+        craft = from_place = to_place = ""
+        verify = ""
+        if inputs["voyage"]:
+            from passagelog.cli.common import db_path_from
+            from passagelog.store import Logbook
+
+            with Logbook.open(db_path_from(ctx), create=False) as book:
+                v = book.voyage(inputs["voyage"])
+                from_place, to_place = v.from_place, v.to_place
+                if v.craft_id is not None:
+                    craft = book.craft(v.craft_id).name
+            verify = _verify_text(ctx)
+        header = VoyageHeader(
+            name=inputs["voyage"] or inputs["plan_name"], craft=craft, from_place=from_place,
+            to_place=to_place,
+            departure_utc=inputs["departure_utc"] or inputs["planned_departure_utc"])
+        prov = Provenance(source=inputs["source"], voyage=inputs["voyage"],
+                          plan=inputs["plan_name"], verify=verify)
+        _write(voyage_report_html(rv, header, prov, center_waypoint=center_wp), output)
+
+    return voyage
+
+
+_voyage_command()

@@ -115,9 +115,11 @@ class _Mercator:
         return np.degrees(isometric_lat(np.asarray(lat, dtype=float), self.earth))
 
 
-def _lat_ticks(ax, merc: _Mercator, lat_min: float, lat_max: float) -> None:
+def _lat_ticks(ax, merc: _Mercator, lat_min: float, lat_max: float, max_ticks: int = 8
+               ) -> None:
     span = max(lat_max - lat_min, 1e-6)
-    step = next(s for s in (1 / 60, 5 / 60, 10 / 60, 0.5, 1, 2, 5, 10, 20) if span / s <= 8)
+    step = next((s for s in (1 / 60, 2 / 60, 5 / 60, 10 / 60, 0.25, 0.5, 1, 2, 5, 10, 20, 30)
+                 if span / s <= max_ticks), 30)
     lats = np.arange(math.floor(lat_min / step) * step, lat_max + step, step)
     ax.set_yticks(merc.y(lats))
     ax.set_yticklabels([_lat_label(v) for v in lats])
@@ -144,7 +146,15 @@ def track_chart_svg(geometry: PlanGeometry, track_lats: Sequence[float],
     earth = get_earth(earth)
     plt = _pyplot()
     merc = _Mercator(float(geometry.wp_lons[0]), earth)
-    fig, ax = plt.subplots(figsize=(7.5, 5.0))
+    tlat = np.asarray(track_lats, dtype=float)
+    tlon = np.asarray(track_lons, dtype=float)
+    xs_all = merc.x(np.concatenate([geometry.wp_lons, tlon]))
+    ys_all = merc.y(np.concatenate([geometry.wp_lats, tlat]))
+    # The figure takes the shape of the area drawn (a conformal chart keeps its aspect).
+    width_in = 7.5
+    aspect = (np.ptp(ys_all) + 1e-9) / (np.ptp(xs_all) + 1e-9)
+    height_in = float(np.clip(width_in * aspect, 2.6, 8.0))
+    fig, ax = plt.subplots(figsize=(width_in, height_in))
     for corridor in geometry.corridors:
         if corridor is None:
             continue
@@ -158,8 +168,6 @@ def track_chart_svg(geometry: PlanGeometry, track_lats: Sequence[float],
     for name, lat, lon in zip(geometry.names, geometry.wp_lats, geometry.wp_lons):
         ax.annotate(name, (merc.x(lon), merc.y(lat)), fontsize=6.5, xytext=(3, 3),
                     textcoords="offset points", color=PLAN_COLOUR)
-    tlat = np.asarray(track_lats, dtype=float)
-    tlon = np.asarray(track_lons, dtype=float)
     if tlat.size:
         tx, ty = merc.x(tlon), merc.y(tlat)
         ax.plot(tx, ty, color=TRACK_COLOUR, lw=0.9, label="track")
@@ -170,11 +178,16 @@ def track_chart_svg(geometry: PlanGeometry, track_lats: Sequence[float],
         if len(times_utc):
             _time_ticks(ax, tx, ty, list(times_utc), tick_hours)
     all_lat = np.concatenate([geometry.wp_lats, tlat]) if tlat.size else geometry.wp_lats
-    _lat_ticks(ax, merc, float(all_lat.min()), float(all_lat.max()))
-    xt = ax.get_xticks()
+    _lat_ticks(ax, merc, float(all_lat.min()), float(all_lat.max()),
+               max_ticks=max(3, int(height_in * 1.6)))
+    ax.set_aspect("equal", adjustable="box")
+    pad_x = 0.06 * (np.ptp(xs_all) + 1e-3)
+    pad_y = 0.06 * (np.ptp(ys_all) + 1e-3)
+    ax.set_xlim(xs_all.min() - pad_x, xs_all.max() + pad_x)
+    ax.set_ylim(ys_all.min() - pad_y, ys_all.max() + pad_y)
+    xt = [v for v in ax.get_xticks() if ax.get_xlim()[0] <= v <= ax.get_xlim()[1]]
     ax.set_xticks(xt)
     ax.set_xticklabels([_lon_label(v) for v in xt])
-    ax.set_aspect("equal", adjustable="datalim")
     ax.grid(True, lw=0.3, color="#bbbbbb")
     ax.set_title(f"{title} (Mercator)")
     ax.legend(loc="best", fontsize=7)

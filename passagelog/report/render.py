@@ -101,6 +101,7 @@ td.text, th.text { text-align: left; }
 .prov td { text-align: left; border: none; padding: 0 .8em 0 0; }
 .figure { margin: .6em 0; page-break-inside: avoid; }
 .empty { color: #555; font-style: italic; }
+@page { size: A4 landscape; margin: 12mm; }
 @media print { body { margin: 0; } h2 { page-break-after: avoid; } }
 """
 
