@@ -42,9 +42,13 @@ FOOT_TOLERANCE_M = 5e-5
 FOOT_MAX_ITERATIONS = 40
 #: A leg shorter than this has no defined course, metres.
 MIN_LEG_M = 1e-6
-#: A position closer than this (radians on the auxiliary sphere) to the pole of the leg's
-#: great circle has no defined foot: every point of the line is (nearly) equally far.
-POLE_TOLERANCE_RAD = 1e-9
+#: A position closer than this (radians on the auxiliary sphere, about 0.6 km) to the pole
+#: of the leg's great circle has no usable foot: every point of the line is nearly equally
+#: far, and a change of 1e-15 rad in an azimuth moves the foot by some 6e-9 m / this angle.
+POLE_TOLERANCE_RAD = 1e-4
+#: Beyond this angular distance (radians of the fitted sphere) from the foot, the step is
+#: taken on the auxiliary sphere, whose distance to the line's pole is right to O(f).
+FAR_RAD = 1.3
 
 
 def _course(azi: float) -> float:
@@ -90,6 +94,23 @@ def _sincos_series_np(sinx, cosx, c):
     return 2 * sinx * cosx * y0
 
 
+def _secant_step_np(sig, f, prev_sig, prev_f):
+    """The step of the foot iteration. ``f`` is the right-triangle step from ``sig``; it is
+    taken as it is unless the previous iterate shows its gain to be clearly off (near a
+    quarter circle from the line, where the fitted sphere's tan(d/R) is far from the
+    ellipsoid's reduced length / geodesic scale): then the gain measured by the secant
+    through the last two iterates corrects it, which turns an oscillation into convergence."""
+    step = f
+    have = np.isfinite(prev_f)
+    if np.any(have):
+        with np.errstate(divide="ignore", invalid="ignore"):
+            gain = (prev_f - f) / (sig - prev_sig)
+            use = have & np.isfinite(gain) & (gain > 0.02) & (gain < 50.0) & (
+                np.abs(gain - 1.0) > 0.1)
+            step = np.where(use, f / np.where(use, gain, 1.0), f)
+    return step
+
+
 def check_point(thing: str, lat: float, lon: float) -> float:
     """Validate one position; returns the longitude folded into [-180, 180)."""
     for name, value in (("latitude", lat), ("longitude", lon)):
@@ -100,7 +121,7 @@ def check_point(thing: str, lat: float, lon: float) -> float:
             raise InputError(f"{thing} {name} is {value!r}; a finite number is required")
     if not -90.0 <= lat <= 90.0:
         raise InputError(f"{thing} latitude {lat!r} is out of range; allowed -90 to 90")
-    if not -540.0 <= lon <= 540.0:
+    if not -180.0 <= lon <= 180.0:
         raise InputError(f"{thing} longitude {lon!r} is out of range; allowed -180 to 180")
     return _lon(float(lon))
 
@@ -115,7 +136,7 @@ def check_points_np(thing: str, lats, lons):
         raise InputError(
             f"{thing} {i} is ({lats.ravel()[i]!r}, {lons.ravel()[i]!r}); finite latitude and "
             "longitude are required")
-    bad = (np.abs(lats) > 90.0) | (np.abs(lons) > 540.0)
+    bad = (np.abs(lats) > 90.0) | (np.abs(lons) > 180.0)
     if bad.any():
         i = int(np.flatnonzero(bad.ravel())[0])
         raise InputError(
@@ -363,12 +384,38 @@ class GreatCircleLeg:
             v = salp0 * py + calp0 * pz
             sig_abs = np.arctan2(v, u)
             sig = half + np.mod(sig_abs - self._sig1 - half + np.pi, 2 * np.pi) - np.pi
-        return sig, np.hypot(u, v)
+        return sig, u, v
 
     def _first_foot_scalar(self, lat, lon):
-        s, r = self._first_foot(np.array([lat], dtype=np.float64),
-                                np.array([lon], dtype=np.float64))
-        return float(s[0]), float(r[0])
+        s, u, v = self._first_foot(np.array([lat], dtype=np.float64),
+                                   np.array([lon], dtype=np.float64))
+        return float(s[0]), float(u[0]), float(v[0])
+
+    def _step_np(self, d, theta, R, sig12, u, v):
+        """Step along the line, metres, from the foot at ``sig12``: the right spherical
+        triangle on the fitted sphere, or on the auxiliary sphere far from the line."""
+        dr = d / R
+        ds = R * np.arctan2(np.sin(dr) * np.cos(theta), np.cos(dr))
+        far = dr > FAR_RAD
+        if np.any(far):
+            sig = self._sig1 + sig12[far]
+            # cos of the auxiliary-sphere arc foot -> position, position at (u, v) in the
+            # plane of the line's great circle
+            cd = np.clip(np.cos(sig) * u[far] + np.sin(sig) * v[far], -1.0, 1.0)
+            sd = np.sqrt(1.0 - cd * cd)
+            dsig = np.arctan2(sd * np.cos(theta[far]), cd)
+            ds[far] = dsig * self._b * np.sqrt(1.0 + self._k2 * np.sin(sig) ** 2)
+        return ds, dr
+
+    def _step(self, d, theta, R, sig12, u, v):
+        """:meth:`_step_np` for one position, in plain floats."""
+        dr = d / R
+        if dr <= FAR_RAD:
+            return R * math.atan2(math.sin(dr) * math.cos(theta), math.cos(dr)), dr
+        sig = self._sig1 + sig12
+        cd = max(-1.0, min(1.0, math.cos(sig) * u + math.sin(sig) * v))
+        dsig = math.atan2(math.sqrt(1.0 - cd * cd) * math.cos(theta), cd)
+        return dsig * self._b * math.sqrt(1.0 + self._k2 * math.sin(sig) ** 2), dr
 
     def offsets_np(self, lats, lons):
         """Cross-track and along-track distances of many positions: ``(xte_m, along_m)``
@@ -384,8 +431,8 @@ class GreatCircleLeg:
         along = np.empty(n)
         if n == 0:
             return xte.reshape(shape), along.reshape(shape)
-        sig, r = self._first_foot(lat, lon)
-        at_pole = r < POLE_TOLERANCE_RAD
+        sig, u, v = self._first_foot(lat, lon)
+        at_pole = np.hypot(u, v) < POLE_TOLERANCE_RAD
         if at_pole.any():
             i = int(np.flatnonzero(at_pole)[0])
             raise GeometryError(self._pole_message(lat[i], lon[i], i))
@@ -395,15 +442,19 @@ class GreatCircleLeg:
         todo = np.arange(n)
         s_todo = sig
         lat_t, lon_t = lat, lon
+        u_t, v_t = u, v
+        prev_s = np.full(n, np.nan)
+        prev_f = np.full(n, np.nan)
         for _ in range(FOOT_MAX_ITERATIONS):
             flat, flon, fazi, dn = self._foot_np(s_todo)
             # one vectorised inverse problem foot -> position (pyproj, PROJ's geodesic.c)
             azi_fp, _, d = geod.inv(flon, flat, lon_t, lat_t)
             R = a if sphere else self._gauss_radius_np(flat, lat_t)
             theta = np.radians(np.asarray(azi_fp) - fazi)
-            dr = np.asarray(d) / R
-            ds = R * np.arctan2(np.sin(dr) * np.cos(theta), np.cos(dr))
-            s_new = s_todo + ds / (self._b * dn)
+            ds, dr = self._step_np(np.asarray(d), theta, R, s_todo, u_t, v_t)
+            f = ds / (self._b * dn)
+            s_new = s_todo + _secant_step_np(s_todo, f, prev_s, prev_f)
+            prev_s, prev_f = s_todo, f
             done = np.abs(ds) < FOOT_TOLERANCE_M
             if done.any():
                 idx = todo[done]
@@ -415,7 +466,9 @@ class GreatCircleLeg:
                 return xte.reshape(shape), along.reshape(shape)
             todo = todo[keep]
             s_todo = s_new[keep]
+            prev_s, prev_f = prev_s[keep], prev_f[keep]
             lat_t, lon_t = lat_t[keep], lon_t[keep]
+            u_t, v_t = u_t[keep], v_t[keep]
         i = int(todo[0])
         raise GeometryError(
             f"position {i} ({lat[i]!r}, {lon[i]!r}): the foot on the great-circle leg "
@@ -448,8 +501,8 @@ class GreatCircleLeg:
     def _pole_message(self, lat, lon, i=None) -> str:
         which = "position" if i is None else f"position {i}"
         return (f"{which} ({lat!r}, {lon!r}) is at the pole of the great-circle leg "
-                f"{self._ends()}: every point of the line is equally far, so the cross-track "
-                "foot is not defined")
+                f"{self._ends()} (within about 0.6 km): every point of the line is nearly "
+                "equally far, so the cross-track foot is not defined")
 
     def offset(self, lat: float, lon: float) -> tuple[float, float]:
         """Cross-track and along-track distance of one position: ``(xte_m, along_m)``.
@@ -458,14 +511,15 @@ class GreatCircleLeg:
         ``GeodesicLine.ArcPosition`` and ``Geodesic.Inverse``."""
         lon = check_point("position", lat, lon)
         lat = float(lat)
-        sig, r = self._first_foot_scalar(lat, lon)
-        if r < POLE_TOLERANCE_RAD:
+        sig, u, v = self._first_foot_scalar(lat, lon)
+        if math.hypot(u, v) < POLE_TOLERANCE_RAD:
             raise GeometryError(self._pole_message(lat, lon))
         from geographiclib.geodesic import Geodesic
 
         line, g = self._line, self._geod
         a, e2 = self.earth.a, self.earth.e2
         mask = Geodesic.LATITUDE | Geodesic.LONGITUDE | Geodesic.AZIMUTH
+        prev_s = prev_f = math.nan
         for _ in range(FOOT_MAX_ITERATIONS):
             p = line.ArcPosition(math.degrees(sig), mask)
             inv = g.Inverse(p["lat2"], p["lon2"], lat, lon,
@@ -473,10 +527,16 @@ class GreatCircleLeg:
             sm = math.sin(math.radians(0.5 * (p["lat2"] + lat)))
             R = a * math.sqrt(1.0 - e2) / (1.0 - e2 * sm * sm)
             theta = math.radians(inv["azi1"] - p["azi2"])
-            dr = inv["s12"] / R
-            ds = R * math.atan2(math.sin(dr) * math.cos(theta), math.cos(dr))
+            ds, dr = self._step(inv["s12"], theta, R, sig, u, v)
             ssig2 = math.sin(self._sig1 + sig)
-            sig += ds / (self._b * math.sqrt(1.0 + self._k2 * ssig2 * ssig2))
+            f = ds / (self._b * math.sqrt(1.0 + self._k2 * ssig2 * ssig2))
+            step = f
+            if math.isfinite(prev_f) and sig != prev_s:
+                gain = (prev_f - f) / (sig - prev_s)
+                if 0.02 < gain < 50.0 and abs(gain - 1.0) > 0.1:
+                    step = f / gain
+            prev_s, prev_f = sig, f
+            sig += step
             if abs(ds) < FOOT_TOLERANCE_M:
                 sin_t = math.sin(theta)
                 if dr < 1.0:

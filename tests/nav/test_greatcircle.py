@@ -384,6 +384,27 @@ def test_position_at_the_pole_of_the_leg():
         leg.offsets_np([10.0, -90.0], [0.0, 0.0])
 
 
+@gs.needs_geodsolve
+@pytest.mark.geodsolve
+def test_equator_leg_offsets_up_to_near_its_pole():
+    # Geometry: meridians are geodesics that cross the equator at right angles, so the foot
+    # of any position on an equatorial leg lies on the position's meridian: XTE is minus the
+    # meridian arc (GeodSolve -i along the meridian), along-track is a * dlon (the equator
+    # is a circle of radius a).
+    leg = GreatCircleLeg(0.0, 0.0, 0.0, 30.0)
+    lat = np.array([0.001, 1.0, 30.0, 60.0, 80.0, 89.0, 89.9, 89.99, -45.0, -89.9])
+    lon = np.array([10.0, -20.0, 45.0, 170.0, 10.0, 10.0, 10.0, 10.0, -100.0, 5.0])
+    xte, along = leg.offsets_np(lat, lon)
+    ref = gs.inverse([(0.0, lo, la, lo) for la, lo in zip(lat, lon)])
+    dlon = (lon - 15.0 + 180.0) % 360.0 - 180.0 + 15.0  # nearest foot: half way round
+    assert np.max(np.abs(np.abs(xte) - ref[:, 2])) < 1e-4
+    assert np.all(np.sign(xte) == -np.sign(lat))  # north of an eastbound leg is port
+    assert np.max(np.abs(along - WGS84.a * np.radians(dlon))) < 1e-4
+    for i in range(len(lat)):
+        x, a = leg.offset(lat[i], lon[i])
+        assert x == pytest.approx(xte[i], abs=1e-4) and a == pytest.approx(along[i], abs=1e-4)
+
+
 def test_never_nan_on_awkward_positions():
     leg = GreatCircleLeg(45.0, 5.0, 45.000899, 5.0)  # 100 m leg
     lat = np.array([45.0, 45.000899, -45.0, 89.999, -89.999, 45.0005])
