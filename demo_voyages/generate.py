@@ -267,6 +267,8 @@ def _expected(sc, route, legs, fixes, truth) -> dict:
         "first_fix_utc": truth[0]["time_utc"],
         "last_fix_utc": truth[-1]["time_utc"],
         "rejected_nmea_lines": 3 if sc.bad_lines else 0,
+        # two of the three spoiled lines were fixes (bad checksum, cut short)
+        "nmea_fixes": len(fixes) - (2 if sc.bad_lines else 0),
         "route_distance_m": round(sum(leg.distance_m for leg in legs), 3),
         "passages": passages,
         "episodes": episodes,

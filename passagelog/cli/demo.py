@@ -1,12 +1,24 @@
-"""``passagelog demo``: the bundled demo voyages, for a first look."""
+"""``passagelog demo``: a throwaway logbook made from the bundled demo voyages.
+
+The demo voyages (``demo_voyages/``) are invented: vessels, aircraft, ports and passages of
+our own scenario, made by ``demo_voyages/generate.py``. ``passagelog demo`` loads all three
+into a fresh logbook in a temporary directory and opens the terminal UI on the ocean
+passage; ``--no-tui`` prints its review instead. Nothing is written to your own logbook.
+"""
 
 from __future__ import annotations
 
+import json
+import shutil
+import tempfile
+from datetime import datetime
 from pathlib import Path
 
 import click
 
 import passagelog
+
+SCENARIOS = ("ocean", "coastal", "air")
 
 
 def demo_dir() -> Path:
@@ -18,23 +30,99 @@ def demo_dir() -> Path:
     raise click.ClickException("the demo voyages are not installed with this copy")
 
 
-@click.command()
-@click.option("--scenario", type=click.Choice(["ocean", "coastal", "air"]), default="ocean",
-              show_default=True, help="Which demo voyage.")
-@click.option("--no-tui", is_flag=True, help="Print the demo passage instead of opening the UI.")
-@click.pass_context
-def demo(ctx: click.Context, scenario: str, no_tui: bool) -> None:
-    """Show a demo passage (invented vessel, ports and passage).
+def _utc(text: str) -> datetime:
+    from passagelog.nav.zonetime import parse_time_utc
 
-    Prints the plan's leg table of the chosen scenario.
+    return parse_time_utc(text)
+
+
+def build_demo_logbook(path: Path, scenarios=SCENARIOS) -> dict[str, str]:
+    """Fill a new logbook at ``path`` with the demo voyages; returns scenario -> voyage name.
+
+    Each voyage gets its craft, its plan (from the scenario's RTZ route), the plan assigned
+    from departure, the fixes of its NMEA log, and its log entries (departure, clock changes,
+    arrival).
     """
-    from passagelog.cli.common import emit_records
-    from passagelog.formats import read_route
-    from passagelog.report.legtable import leg_table_records, plan_leg_table
+    from dataclasses import replace
 
-    route = read_route(demo_dir() / scenario / "route.csv")
-    records = leg_table_records(plan_leg_table(route))
-    columns = ["leg", "from", "to", "sailing", "initial_course", "distance_nm",
-               "cumulative_nm", "speed_kn", "time_h", "xtl_port_nm", "xtl_stbd_nm",
-               "wheel_over_nm", "gc_saving_nm"]
-    emit_records(records, columns, "table", title=f"Demo passage: {route.name}")
+    from passagelog.formats import iter_fixes, read_route
+    from passagelog.model import Craft, LogEntry, Voyage
+    from passagelog.store import Logbook
+
+    root = demo_dir()
+    names = {}
+    with Logbook.open(path) as book:
+        for key in scenarios:
+            folder = root / key
+            meta = json.loads((folder / "voyage.json").read_text(encoding="utf-8"))
+            craft = book.add_craft(Craft(**meta["craft"]))
+            route = replace(read_route(folder / "route.rtz"), name=meta["title"])
+            dep = _utc(meta["departure_utc"])
+            voyage = book.add_voyage(Voyage(
+                name=meta["title"], craft_id=craft.craft_id, from_place=meta["from"],
+                to_place=meta["to"], departure_utc=dep, zd_minutes=meta["zd_minutes"]))
+            plan_id, revision = book.create_plan(route, "planned before departure")
+            book.assign_plan(voyage, plan_id, revision, None)
+            book.add_fixes(voyage, iter_fixes(folder / "fixes.nmea"))
+            for e in meta["entries"]:
+                book.add_entry(voyage, LogEntry(time_utc=_utc(e["time_utc"]), kind=e["kind"],
+                                                text=e["text"], zd_minutes=e["zd_minutes"]))
+            names[key] = voyage.name
+    return names
+
+
+@click.command()
+@click.option("--scenario", type=click.Choice(SCENARIOS), default="ocean", show_default=True,
+              help="Which demo voyage to show.")
+@click.option("--no-tui", is_flag=True, help="Print the voyage's review instead of opening "
+              "the terminal UI.")
+@click.option("--keep", metavar="PATH", help="Write the demo logbook to PATH and keep it "
+              "(default: a temporary file, removed afterwards).")
+@click.pass_context
+def demo(ctx: click.Context, scenario: str, no_tui: bool, keep: str | None) -> None:
+    """Open a demo voyage in a throwaway logbook (invented vessel, ports and passage).
+
+    Three voyages are loaded: an ocean passage of great-circle and rhumb legs with clock
+    changes and a deviation episode, a coastal passage with tight cross-track limits, and a
+    cross-country flight with wind. Your own logbook is not touched.
+
+    \b
+    passagelog demo                     the terminal UI on the ocean passage
+    passagelog demo --no-tui            its review, printed
+    passagelog demo --keep demo.sqlite  keep the logbook to try other commands on
+    """
+    tmp = None
+    if keep:
+        path = Path(keep)
+        if path.exists():
+            raise click.UsageError(f"{keep} exists already; give a new file for --keep")
+    else:
+        tmp = Path(tempfile.mkdtemp(prefix="passagelog-demo-"))
+        path = tmp / "demo-logbook.sqlite"
+    try:
+        names = build_demo_logbook(path)
+        voyage = names[scenario]
+        if keep:
+            click.echo(f"demo logbook written to {path}", err=True)
+        if no_tui or not click.get_text_stream("stdout").isatty():
+            _print_review(ctx, path, voyage)
+        else:
+            from passagelog.tui import run_app
+
+            run_app(path, voyage=voyage)
+    finally:
+        if tmp is not None:
+            shutil.rmtree(tmp, ignore_errors=True)
+
+
+def _print_review(ctx: click.Context, path: Path, voyage: str) -> None:
+    """The review of the demo voyage: its legs, passages and deviation episodes."""
+    from passagelog.cli.review import emit_table, load_inputs, run_review, _provenance
+
+    root = ctx.find_root()
+    root.obj = dict(root.obj or {}, db_path=str(path))
+    inputs = load_inputs(ctx, voyage, None, None, None, None, None, None, ())
+    rv = run_review(inputs, 3.0, 60.0, False, None, None)
+    for table in ("legs", "passages", "episodes", "noon"):
+        emit_table(rv.iter_rows(table), table, "table", title=f"{voyage}: {table}",
+                   provenance=_provenance(inputs))
