@@ -61,6 +61,14 @@ def _number(thing: str, value, *, low: float | None = None, high: float | None =
     return x
 
 
+def _finite_result(thing: str, x: float) -> float:
+    """``x`` if finite; otherwise the inputs were too extreme for a meaningful answer."""
+    if not math.isfinite(x):
+        raise InputError(f"{thing} comes out as {x!r}: the inputs are too large or too small "
+                         "for a meaningful answer")
+    return x
+
+
 def normalize_course(deg: float) -> float:
     """A direction folded into [0, 360) (no ``360.0``, no ``-0.0``)."""
     c = math.fmod(deg, 360.0)
@@ -106,14 +114,14 @@ def distance_run_m(speed_kn: float, elapsed_s: float) -> float:
     """Distance covered at ``speed_kn`` in ``elapsed_s`` seconds, metres."""
     v = _number("speed (kn)", speed_kn, low=0.0)
     t = _number("elapsed time (s)", elapsed_s, low=0.0)
-    return v * KN_MPS * t
+    return _finite_result("distance run (m)", v * KN_MPS * t)
 
 
 def time_to_cover_s(distance_m: float, speed_kn: float) -> float:
     """Estimated time to cover ``distance_m`` at ``speed_kn``, seconds."""
     d = _number("distance (m)", distance_m, low=0.0)
     v = _number("speed (kn)", speed_kn, low=0.0, low_open=True)
-    return d / (v * KN_MPS)
+    return _finite_result("time to cover the distance (s)", d / (v * KN_MPS))
 
 
 # ---------------------------------------------------------------------------------------------
@@ -229,7 +237,8 @@ def set_and_drift(dr_lat: float, dr_lon: float, fix_lat: float, fix_lon: float,
     dist, course = _rhumb().rhumb_inverse(dr_lat, dr_lon, fix_lat, fix_lon, get_earth(earth))
     if dist == 0.0:
         return SetAndDrift(None, 0.0, 0.0, t)
-    return SetAndDrift(normalize_course(course), dist / t / KN_MPS, dist, t)
+    drift = _finite_result("drift (kn)", dist / t / KN_MPS)
+    return SetAndDrift(normalize_course(course), drift, dist, t)
 
 
 @dataclass(frozen=True)

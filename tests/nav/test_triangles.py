@@ -465,3 +465,13 @@ def test_course_to_steer_then_ep_lands_on_the_track(lat, lon, track, stw, set_, 
     # cross-track distance from the intended track is below a millimetre
     on = rhumb_direct(lat, lon, track, s)
     assert metres_between(ep.lat, ep.lon, *on) < 1e-3
+
+
+def test_extreme_inputs_give_errors_not_infinities():
+    # regression: a 1e-320 h interval gave an infinite drift on the CLI
+    with pytest.raises(InputError, match="drift"):
+        set_and_drift(50.0, -4.0, 50.1, -4.0, 1e-316)
+    with pytest.raises(InputError, match="time to cover"):
+        time_to_cover_s(1e300, 1e-300)
+    with pytest.raises(InputError, match="distance run"):
+        distance_run_m(1e308, 1e308)
