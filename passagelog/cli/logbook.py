@@ -651,6 +651,7 @@ def verify(ctx, as_json, rebuild_cache) -> None:
     if as_json:
         click.echo(json.dumps({
             "ok": report.ok, "records": report.records,
+            "heads": {c: {"record_id": i, "hash": h} for c, (i, h) in report.heads.items()},
             "findings": [{"kind": f.kind, "chain": f.chain, "record_id": f.record_id,
                           "message": f.message} for f in report.findings]},
             ensure_ascii=False, indent=1))
