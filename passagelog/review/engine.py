@@ -560,7 +560,7 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         j = np.searchsorted(gt, t[after] - window_s, side="left")
         j = np.minimum(j, gi.size - 1)
         w0 = gi[j]
-        ok = (w0 < after)
+        ok = (w0 < after) & (t[w0] < t[after])
         if ok.any():
             aa = after[ok]
             ww = w0[ok]

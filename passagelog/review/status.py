@@ -92,7 +92,7 @@ def status_of(review: Review, row: int = -1) -> Status:
     if cand.size:
         pos = min(int(np.searchsorted(t[cand], t[i] - window, side="left")), cand.size - 1)
         j = int(cand[pos])
-        if j < i:
+        if j < i and t[j] < t[i]:
             d, azi, _ = inverse(float(fr.lat[j]), float(fr.lon[j]), float(fr.lat[i]),
                                 float(fr.lon[i]), review.settings.earth)
             cmg = azi if d > 0 else None

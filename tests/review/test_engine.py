@@ -355,3 +355,27 @@ def test_watch_gives_the_status_of_the_full_review(voyage):
     rv_d = reconcile(route, part, detail_from_utc=cols["time_s"][6])
     assert math.isnan(rv_d.fixes.xte_m[5]) and not math.isnan(rv_d.fixes.xte_m[6])
     assert rv_d.legs == () and rv_d.episodes == () and rv_d.detail_from_s == cols["time_s"][6]
+
+
+def test_empty_single_duplicate_and_invalid_fixes():
+    route = syn.route(POINTS[:3])
+    rv = reconcile(route, syn.columns([], [], []))
+    assert len(rv.fixes) == 0 and all(rv.rows(t) == [] for t in ("passages", "gaps", "noon"))
+    with pytest.raises(InputError, match="no fixes"):
+        rv.status()
+    # two fixes at the same time and one without a position
+    t = syn.T0
+    rv = reconcile(route, syn.columns([t, t, t + 60], [50.0, 50.01, np.nan], [-4.0] * 3))
+    assert len(rv.fixes) == 2 and rv.invalid_fixes == 1
+    st = rv.status()
+    assert st.smg_window_kn is None and st.cmg_window is None and st.eta_dest_smg_s is None
+    assert math.isnan(rv.fixes.smg_prev_kn[1])
+
+
+def test_a_zero_length_leg_is_refused_with_its_name():
+    from passagelog.errors import GeometryError
+    from passagelog.model import Route, Waypoint
+
+    route = Route("harbour", (Waypoint("A", 1.0, 1.0), Waypoint("B", 1.0, 1.0)))
+    with pytest.raises(GeometryError, match=r"route 'harbour' leg 1 \(A -> B\)"):
+        reconcile(route, syn.columns([syn.T0], [1.0], [1.0]))
