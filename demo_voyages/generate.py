@@ -151,7 +151,9 @@ def build(sc: Scenario, out: Path) -> dict:
                                   sc.wind["kn"]).ground_speed_kn
             else:
                 v = speed_kn * (1 + sc.speed_wobble * math.sin(s_nm / 17.0 + wobble_phase))
-            fixes.append(Fix(time_utc=t, lat=lat, lon=lon, method="gnss", sog_kn=round(v, 1),
+            # 1e-9 degree is 0.1 mm: the files do not change with the last bits of the math
+            fixes.append(Fix(time_utc=t, lat=round(lat, 9), lon=round(lon, 9), method="gnss",
+                             sog_kn=round(v, 1),
                              cog=round(course % 360.0, 1) % 360.0,
                              hdop=round(float(rng.uniform(0.6, 1.4)), 1),
                              satellites=int(rng.integers(7, 13)), fix_mode="A"))
@@ -276,9 +278,17 @@ def _expected(sc, route, legs, fixes, truth) -> dict:
     }
 
 
-def main() -> None:
+def main(argv: list[str] | None = None) -> None:
+    """``generate.py [OUT_DIR]``: write the scenarios into OUT_DIR (default: beside this
+    script). Each scenario's folder must already hold its ``route.csv``."""
+    args = sys.argv[1:] if argv is None else argv
+    out = Path(args[0]) if args else HERE
     for sc in SCENARIOS:
-        exp = build(sc, HERE / sc.key)
+        folder = out / sc.key
+        if folder.resolve() != (HERE / sc.key).resolve():
+            folder.mkdir(parents=True, exist_ok=True)
+            (folder / "route.csv").write_bytes((HERE / sc.key / "route.csv").read_bytes())
+        exp = build(sc, folder)
         print(f"{sc.key}: {exp['fixes']} fixes, {len(exp['episodes'])} deviation episode(s)",
               file=sys.stderr)
 
