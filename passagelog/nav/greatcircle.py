@@ -63,14 +63,12 @@ def _lon(lon: float) -> float:
 
 def _lon_np(lon):
     x = np.mod(np.asarray(lon, dtype=np.float64) + 180.0, 360.0) - 180.0
-    x[x >= 180.0] -= 360.0
-    return x + 0.0
+    return np.where(x >= 180.0, x - 360.0, x) + 0.0
 
 
 def _course_np(azi):
     c = np.mod(azi, 360.0)
-    c[c >= 360.0] = 0.0
-    return c + 0.0
+    return np.where(c >= 360.0, 0.0, c) + 0.0
 
 
 def _sincos_series_np(sinx, cosx, c):

@@ -13,7 +13,7 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from passagelog.errors import GeometryError, InputError
-from passagelog.nav.earth import SPHERE_NM, WGS84, Earth
+from passagelog.nav.earth import SPHERE, SPHERE_NM, WGS84, Earth
 from passagelog.nav.greatcircle import GreatCircleLeg, composite
 
 sys.path.insert(0, str(Path(__file__).parent))
@@ -403,6 +403,52 @@ def test_equator_leg_offsets_up_to_near_its_pole():
     for i in range(len(lat)):
         x, a = leg.offset(lat[i], lon[i])
         assert x == pytest.approx(xte[i], abs=1e-4) and a == pytest.approx(along[i], abs=1e-4)
+
+
+@gs.needs_geodsolve
+@pytest.mark.geodsolve
+def test_sphere_offsets_against_geodsolve_and_closed_forms():
+    # GeodSolve -e 6371008.8 0 (the mean-radius sphere) with the independent foot search,
+    # and the closed-form spherical cross-track formulas (Aviation Formulary, Williams)
+    lat1, lon1, lat2, lon2 = _random_legs(31, 60)
+    rng = np.random.default_rng(32)
+    plat, plon = rng.uniform(-85, 85, 60), rng.uniform(-180, 180, 60)
+    xr, ar = gs.foot(lat1, lon1, lat2, lon2, plat, plon, a=SPHERE.a, f=0.0)
+    ok = ~np.isnan(xr)
+    assert ok.sum() >= 56
+    R = SPHERE.a
+    for i in np.flatnonzero(ok):
+        leg = GreatCircleLeg(lat1[i], lon1[i], lat2[i], lon2[i], SPHERE)
+        x, a = leg.offsets_np([plat[i]], [plon[i]])
+        assert x[0] == pytest.approx(xr[i], abs=1e-3) and a[0] == pytest.approx(ar[i], abs=1e-3)
+        g = Geodesic(R, 0.0).Inverse(lat1[i], lon1[i], plat[i], plon[i])
+        d13 = g["s12"] / R
+        xtd = math.asin(math.sin(d13) * math.sin(math.radians(g["azi1"] - leg.initial_course)))
+        assert x[0] == pytest.approx(xtd * R, abs=1e-3)
+
+
+def test_offsets_np_keeps_the_shape_of_its_input():
+    leg = GreatCircleLeg(10.0, 20.0, 30.0, 40.0)
+    xte, along = leg.offsets_np(np.full((2, 3), 15.0), np.linspace(20, 30, 6).reshape(2, 3))
+    assert xte.shape == along.shape == (2, 3)
+    xte, along = leg.offsets_np([], [])
+    assert xte.shape == (0,)
+    # scalar and batch agree to far below the 0.1 mm convergence tolerance
+    x, a = leg.offset(15.0, 22.0)
+    assert xte.dtype == np.float64
+    xb, ab = leg.offsets_np(15.0, 22.0)
+    assert float(xb) == pytest.approx(x, abs=1e-6) and float(ab) == pytest.approx(a, abs=1e-6)
+
+
+def test_non_convergence_is_a_clear_error(monkeypatch):
+    import passagelog.nav.greatcircle as gcm
+
+    monkeypatch.setattr(gcm, "FOOT_MAX_ITERATIONS", 1)
+    leg = GreatCircleLeg(10.0, 20.0, 30.0, 40.0)
+    with pytest.raises(GeometryError, match="did not converge in 1 iterations"):
+        leg.offsets_np([0.0, 25.0], [0.0, 30.0])
+    with pytest.raises(GeometryError, match=r"position \(25.0, 30.0\)"):
+        leg.offset(25.0, 30.0)
 
 
 def test_never_nan_on_awkward_positions():
