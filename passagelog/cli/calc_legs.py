@@ -92,7 +92,11 @@ def _read_batch(stream, with_position: bool, default_sailing: str) -> list[tuple
     Every row is read and checked before anything is computed or printed."""
     name = getattr(stream, "name", "-")
     name = "stdin" if name in ("-", "<stdin>") else name
-    text = stream.read()
+    try:
+        text = stream.read()
+    except UnicodeDecodeError as exc:
+        raise InputError(f"the batch file is not UTF-8 text ({exc.reason})", where=name) \
+            from None
     reader = csv.reader(io.StringIO(text, newline=""))
     try:
         header = next(reader)

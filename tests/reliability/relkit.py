@@ -331,7 +331,8 @@ def read_document(path: Path, tally: Tally | None = None) -> None:
             assert text.strip() and "\n" not in text, f"not one line: {text!r}"
             assert name in text, f"error does not name the file {name!r}: {text}"
         except Exception as exc:  # noqa: BLE001 - this is what we are hunting
-            raise Escaped(f"{type(exc).__name__} escaped reading {name} as {what}: {exc!r}") \
+            raise Escaped(f"{type(exc).__name__} escaped reading {name} as {what}: "
+                          f"{exc!r:.300}") \
                 from exc
         finally:
             if tally is not None:
@@ -359,7 +360,8 @@ def run_cli(argv: list[str], stdin: str = "", env: dict | None = None) -> tuple[
         except SystemExit as exc:
             code = exc.code if isinstance(exc.code, int) else (0 if exc.code is None else 1)
         except BaseException as exc:  # noqa: BLE001 - this is what we are hunting
-            raise Escaped(f"{type(exc).__name__} escaped main({argv!r}): {exc!r}") from exc
+            raise Escaped(f"{type(exc).__name__} escaped main({argv!r}): {exc!r:.300}") \
+                from exc
         out, err = outs[0].getvalue(), outs[1].getvalue()
     return code, out.decode("utf-8", "replace"), err.decode("utf-8", "replace")
 

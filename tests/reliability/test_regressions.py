@@ -98,3 +98,18 @@ def test_regression_fix_satellites_beyond_int32(tmp_path):
     p.write_text(good + bad)
     fixes, summary = read_fixes(p, start_date=T0.date())
     assert len(fixes) == 1 and list(summary.rejected_at.values()) == [[2]]
+
+
+def test_regression_calc_batch_not_utf8(tmp_path):
+    # ``calc leg --batch FILE`` on a binary file (a logbook): UnicodeDecodeError was a traceback.
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).parent))
+    import relkit
+
+    p = tmp_path / "book.sqlite"
+    p.write_bytes(b"SQLite format 3\x00\x10\x00\x02\x02\x00@  \xa6\xff\xfe")
+    for cmd in ("leg", "offset"):
+        code, out, err = relkit.run_cli(["calc", cmd, "--batch", str(p)])
+        assert code == 1 and out == "" and "not UTF-8 text" in err and "book.sqlite" in err, err
