@@ -29,6 +29,8 @@ COMMANDS: dict[str, str] = {
     "report": "report:report",
     "review": "review:review",
     "status": "review:status",
+    "import": "interchange:import_",
+    "export": "interchange:export",
 }
 
 
