@@ -109,12 +109,12 @@ def _is_path(source: Source) -> bool:
     return isinstance(source, (str, os.PathLike)) and str(source) != "-"
 
 
-def _prepare(source: Source, fmt: str | None, allowed: tuple[str, ...], what: str
-             ) -> tuple[str, str, IO | None]:
+def _prepare(source: Source, fmt: str | None, allowed: tuple[str, ...], what: str,
+             label: str | None = None) -> tuple[str, str, IO | None]:
     """(format, name, stream-or-None): peek at the content and check the format."""
     import sys
 
-    name = source_name(source)
+    name = label or source_name(source)
     stream = None
     if _is_path(source):
         try:
@@ -124,7 +124,7 @@ def _prepare(source: Source, fmt: str | None, allowed: tuple[str, ...], what: st
     else:
         raw = sys.stdin if not hasattr(source, "read") else source
         head, stream = peek_stream(raw)  # type: ignore[arg-type]
-    found = check_format(fmt, source, head) if fmt else detect_format(source, head)
+    found = check_format(fmt, name, head) if fmt else detect_format(name, head)
     if found not in allowed:
         raise FormatError(f"is {LABELS[found]}, which holds no {what}; {what} are read from: "
                           + ", ".join(allowed), where=name)
@@ -137,13 +137,15 @@ def _binary(source: Source, stream: IO | None) -> IO[bytes]:
     return io.BytesIO(stream.read().encode("utf-8"))
 
 
-def read_routes(source: Source, *, fmt: str | None = None) -> list[Route]:
+def read_routes(source: Source, *, fmt: str | None = None, label: str | None = None,
+                missing_ok: bool = False) -> list[Route]:
     """Every route in a file (RTZ and CSV hold one; GPX may hold several ``rte``).
 
     A GPX file without ``rte`` but with two or more ``wpt`` gives one route of those
-    waypoints in file order.
+    waypoints in file order; with neither it is a FormatError, or ``[]`` when
+    ``missing_ok``. ``label`` names the file in messages (default: its file name).
     """
-    found, name, stream = _prepare(source, fmt, ROUTE_FORMATS, "routes")
+    found, name, stream = _prepare(source, fmt, ROUTE_FORMATS, "routes", label)
     stem = Path(name).stem if name != "<stdin>" else "route"
     if found == "route-csv":
         from passagelog.formats.csvfmt import read_route_csv
@@ -165,29 +167,31 @@ def read_routes(source: Source, *, fmt: str | None = None) -> list[Route]:
         routes, wpts = read_gpx_routes(fh, name)
     if not routes and len(wpts) >= 2:
         routes = [Route(stem, tuple(wpts))]
-    if not routes:
+    if not routes and not missing_ok:
         raise FormatError("holds no route (no 'rte' element and fewer than two 'wpt')",
                           where=name)
     return routes
 
 
-def read_route(source: Source, *, fmt: str | None = None, name: str | None = None) -> Route:
+def read_route(source: Source, *, fmt: str | None = None, name: str | None = None,
+               label: str | None = None) -> Route:
     """The route of a file (CSV, GPX ``rte``, RTZ 1.0/1.1/1.2).
 
     When a GPX file holds several routes, ``name`` picks one; without it that is an error
     listing the names.
     """
-    routes = read_routes(source, fmt=fmt)
+    routes = read_routes(source, fmt=fmt, label=label)
+    where_ = label or source_name(source)
     if name is not None:
         for route in routes:
             if route.name == name:
                 return route
         raise FormatError(f"holds no route named {name!r}; it holds: "
-                          + ", ".join(repr(r.name) for r in routes), where=source_name(source))
+                          + ", ".join(repr(r.name) for r in routes), where=where_)
     if len(routes) > 1:
         raise FormatError(f"holds {len(routes)} routes ("
                           + ", ".join(repr(r.name) for r in routes)
-                          + "); name the one to read", where=source_name(source))
+                          + "); name the one to read", where=where_)
     return routes[0]
 
 
@@ -200,16 +204,16 @@ class FixReader:
     least ``thin_s`` after the last one kept); ``talkers`` (NMEA) keeps only those talkers,
     preferred in that order; ``require_checksum`` (NMEA, default True); ``start_date``
     (NMEA) dates a log that has only GGA/GLL; ``progress(bytes_read)`` is called now and
-    then while a file is read.
+    then while a file is read; ``label`` names the file in messages.
     """
 
     def __init__(self, source: Source, *, fmt: str | None = None, thin_s: float | None = None,
                  talkers: Sequence[str] | None = None, require_checksum: bool = True,
                  start_date: date | None = None,
-                 progress: Callable[[int], None] | None = None):
+                 progress: Callable[[int], None] | None = None, label: str | None = None):
         if thin_s is not None and not thin_s >= 0:
             raise FormatError(f"thinning interval {thin_s!r} s must be a number >= 0")
-        self.fmt, self.name, self._stream = _prepare(source, fmt, FIX_FORMATS, "fixes")
+        self.fmt, self.name, self._stream = _prepare(source, fmt, FIX_FORMATS, "fixes", label)
         self._source = source
         self.summary = ReadSummary(self.name)
         self._options = dict(thin_s=thin_s, talkers=talkers, require_checksum=require_checksum,
