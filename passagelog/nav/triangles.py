@@ -50,7 +50,7 @@ def _number(thing: str, value, *, low: float | None = None, high: float | None =
     """``value`` as a finite float within bounds, or an InputError naming ``thing``."""
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         raise InputError(f"{thing} must be a number, not {value!r}")
-    x = float(value)
+    x = float(value) + 0.0             # no -0.0
     if not math.isfinite(x):
         raise InputError(f"{thing} is {value!r}; a finite number is required")
     if low is not None and (x <= low if low_open else x < low):
@@ -134,6 +134,23 @@ def _rhumb():
     return rhumb
 
 
+def _advance(lat: float, lon: float, course: float, distance_m: float,
+             earth: Earth) -> tuple[float, float]:
+    """The rhumb-line direct problem, with the start checked and the cases without a
+    defined course (no distance; leaving a pole) settled here."""
+    la = _number("start latitude", lat, low=-90.0, high=90.0)
+    lo = _number("start longitude", lon, low=-180.0, high=180.0)
+    if distance_m == 0.0:
+        lo = math.fmod(lo + 180.0, 360.0)
+        return la, (lo + 360.0 if lo < 0.0 else lo) - 180.0 + 0.0
+    if abs(la) == 90.0 and course not in (0.0, 180.0):
+        raise GeometryError(
+            f"from the {'north' if la > 0 else 'south'} pole every direction is "
+            f"{'south' if la > 0 else 'north'}: a course of {course:g}° is not defined there"
+        )
+    return _rhumb().rhumb_direct(la, lo, course, distance_m, earth)
+
+
 @dataclass(frozen=True)
 class DeadReckoning:
     """A DR position: ``distance_m`` run along ``course`` (a rhumb line) in ``elapsed_s``."""
@@ -153,7 +170,7 @@ def dead_reckoning(lat: float, lon: float, course: float, speed_kn: float, elaps
     v = _number("speed (kn)", speed_kn, low=0.0)
     t = _number("elapsed time (s)", elapsed_s, low=0.0)
     d = v * KN_MPS * t
-    lat2, lon2 = _rhumb().rhumb_direct(lat, lon, c, d, get_earth(earth))
+    lat2, lon2 = _advance(lat, lon, c, d, get_earth(earth))
     return DeadReckoning(lat2, lon2, c, v, t, d)
 
 
@@ -189,7 +206,7 @@ def ground_velocity(heading: float, stw_kn: float, set_deg: float, drift_kn: flo
     we, wn = _vec(h + lw, v)
     ce, cn = _vec(s, w)
     ge, gn = we + ce, wn + cn
-    speed = math.hypot(ge, gn)
+    speed = _finite_result("speed made good (kn)", math.hypot(ge, gn))
     if speed <= 1e-12 * max(v, w):          # the current cancels the way (rounding aside)
         return None, 0.0
     return _dir_of(ge, gn), speed
@@ -210,7 +227,7 @@ def estimated_position(lat: float, lon: float, course: float, speed_kn: float,
     lw = _leeway(leeway_deg)
     cmg, smg = ground_velocity(course, speed_kn, set_deg, drift_kn, lw)
     d = smg * KN_MPS * dr.elapsed_s
-    lat2, lon2 = _rhumb().rhumb_direct(lat, lon, 0.0 if cmg is None else cmg, d, e)
+    lat2, lon2 = _advance(lat, lon, 0.0 if cmg is None else cmg, d, e)
     return EstimatedPosition(lat2, lon2, dr.lat, dr.lon, normalize_course(dr.course + lw),
                              cmg, smg, d, dr.elapsed_s)
 
@@ -282,7 +299,7 @@ def course_to_steer(track: float, stw_kn: float, set_deg: float, drift_kn: float
             "makes good that track"
         )
     ang = math.asin(max(-1.0, min(1.0, -across / v)))   # water track - track
-    smg = v * math.cos(ang) + along
+    smg = _finite_result("speed made good (kn)", v * math.cos(ang) + along)
     if smg <= 0.0:
         raise GeometryError(
             f"current {w:g} kn setting {s:g}° against the track {tr:g}° is stronger than "
@@ -307,7 +324,7 @@ def course_for_speed_made_good(track: float, smg_kn: float, set_deg: float, drif
     ge, gn = _vec(tr, g)
     ce, cn = _vec(s, w)
     we, wn = ge - ce, gn - cn
-    v = math.hypot(we, wn)
+    v = _finite_result("speed through the water needed (kn)", math.hypot(we, wn))
     if v <= 1e-12 * max(g, w):
         raise GeometryError(
             f"the current {w:g} kn setting {s:g}° alone makes good {tr:g}° at {g:g} kn: "
@@ -399,7 +416,7 @@ def find_wind(true_heading: float, tas_kn: float, track: float,
     ae, an = _vec(th, tas)
     ge, gn = _vec(tr, gs)
     we, wn = ge - ae, gn - an           # wind vector, toward which it blows
-    w = math.hypot(we, wn)
+    w = _finite_result("wind speed (kn)", math.hypot(we, wn))
     if w <= 1e-12 * max(tas, gs, 1.0):
         return FoundWind(None, 0.0, signed_angle(th - tr), th, tas, tr, gs)
     return FoundWind(normalize_course(_dir_of(we, wn) + 180.0), w, signed_angle(th - tr),

@@ -475,3 +475,22 @@ def test_extreme_inputs_give_errors_not_infinities():
         time_to_cover_s(1e300, 1e-300)
     with pytest.raises(InputError, match="distance run"):
         distance_run_m(1e308, 1e308)
+
+
+def test_dr_with_no_way_or_from_a_pole():
+    # regression (library fuzzing): no distance leaves the start where it is, even at a pole
+    dr = dead_reckoning(-90.0, 45.0, 90.0, 0.0, 3600.0)
+    assert (dr.lat, dr.lon, dr.distance_m) == (-90.0, 45.0, 0.0)
+    assert dead_reckoning(10.0, 180.0, 33.0, 5.0, 0.0).lon == -180.0
+    # leaving a pole: only the meridians are courses there
+    with pytest.raises(GeometryError, match="every direction is north"):
+        dead_reckoning(-90.0, 45.0, 90.0, 10.0, 3600.0)
+    ep = estimated_position(-90.0, 0.0, 0.0, 10.0, 3600.0, 0.0, 0.0)
+    # near the pole a degree of latitude is the polar radius of curvature a^2/b = 6399593.6 m
+    # times pi/180 = 111694 m (WGS84, NIMA TR8350.2)
+    assert ep.lat == pytest.approx(-90.0 + 10 * NM / 111_694.0, abs=1e-6)
+    # huge values come back as errors, not infinities
+    with pytest.raises(InputError, match="wind speed"):
+        find_wind(0.0, 1.7e308, 180.0, 1.7e308)
+    with pytest.raises(InputError, match="speed made good"):
+        ground_velocity(0.0, 1.7e308, 0.0, 1.7e308)
