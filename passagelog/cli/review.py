@@ -366,7 +366,8 @@ def status_lines(st, *, zd_minutes: int, now_s: float | None, name: str) -> list
         lines.append(f"Made good -  (no progress measured over the last {hours:g} h)")
     else:
         cmg = "-" if st.cmg_window is None else f"{st.cmg_window:05.1f}°T"
-        lines.append(f"Made good {cmg} at {st.smg_window_kn:.1f} kn over the last {hours:g} h")
+        span = hours if st.window_used_s is None else st.window_used_s / 3600.0
+        lines.append(f"Made good {cmg} at {st.smg_window_kn:.1f} kn over the last {span:.3g} h")
     lines.append(f"ETA {st.to_wp:<6}{_when(st.eta_wp_plan_s, zd_minutes)} by plan, "
                  f"{_when(st.eta_wp_smg_s, zd_minutes)} by SMG")
     if st.to_wp != st.destination or st.leg != st.legs:

@@ -18,7 +18,8 @@ class Status:
 
     ``side`` is ``"R"`` (starboard of the leg) or ``"L"`` (port) or ``""`` on the line;
     ``xtl_m`` the limit on that side (None when the leg has none). ``cmg_window``/
-    ``smg_window_kn`` are made good over the review's window (``window_s``); ``set``/
+    ``smg_window_kn`` are made good over the review's window (``window_s``; less, as
+    ``window_used_s`` says, early in the voyage or after suspect fixes); ``set``/
     ``drift_kn`` the vector mean of the currents found over the same window (None where
     heading and speed through the water were not logged). Times are float seconds (UTC).
     """
@@ -45,6 +46,7 @@ class Status:
     cmg_window: float | None
     smg_window_kn: float | None
     window_s: float
+    window_used_s: float | None
     eta_wp_plan_s: float | None
     eta_dest_plan_s: float | None
     eta_wp_smg_s: float | None
@@ -64,6 +66,7 @@ class Status:
             "leg_to_go_m": self.leg_to_go_m, "dtw_m": self.dtw_m, "btw": self.btw,
             "route_to_go_m": self.route_to_go_m, "cmg_window": self.cmg_window,
             "smg_window_kn": self.smg_window_kn, "window_s": self.window_s,
+            "window_used_s": self.window_used_s,
             "eta_wp_plan_utc": iso_z(self.eta_wp_plan_s),
             "eta_dest_plan_utc": iso_z(self.eta_dest_plan_s),
             "eta_wp_smg_utc": iso_z(self.eta_wp_smg_s),
@@ -89,10 +92,12 @@ def status_of(review: Review, row: int = -1) -> Status:
     # made good over the window, from the first good fix in it (not before departure)
     cand = np.flatnonzero(good[: i + 1] & (fr.phase[: i + 1] != 0))
     cmg = None
+    used = None
     if cand.size:
         pos = min(int(np.searchsorted(t[cand], t[i] - window, side="left")), cand.size - 1)
         j = int(cand[pos])
         if j < i and t[j] < t[i]:
+            used = float(t[i] - t[j])
             d, azi, _ = inverse(float(fr.lat[j]), float(fr.lon[j]), float(fr.lat[i]),
                                 float(fr.lon[i]), review.settings.earth)
             cmg = azi if d > 0 else None
@@ -116,7 +121,7 @@ def status_of(review: Review, row: int = -1) -> Status:
         inside_xtl=bool(fr.inside_xtl[i]), along_m=float(fr.along_m[i]),
         leg_to_go_m=float(fr.leg_to_go_m[i]), dtw_m=float(fr.dtw_m[i]), btw=_f(fr.btw[i]),
         route_to_go_m=float(fr.route_to_go_m[i]), cmg_window=cmg,
-        smg_window_kn=_f(fr.smg_window_kn[i]), window_s=window,
+        smg_window_kn=_f(fr.smg_window_kn[i]), window_s=window, window_used_s=used,
         eta_wp_plan_s=_f(fr.eta_wp_plan_s[i]), eta_dest_plan_s=_f(fr.eta_dest_plan_s[i]),
         eta_wp_smg_s=_f(fr.eta_wp_smg_s[i]), eta_dest_smg_s=_f(fr.eta_dest_smg_s[i]),
         delay_s=_f(fr.delay_s[i]), set=set_deg, drift_kn=drift, destination=names[-1],
