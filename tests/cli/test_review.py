@@ -185,3 +185,33 @@ def test_review_and_status_of_a_logbook_voyage(tmp_path):
     assert r.stdout.splitlines()[0] == "Voyage    Kestrel 1"
     # ship's time after the clock change is ZD+1
     assert "ZD+1" in r.stdout
+
+
+def _doc_block(after: str) -> list[str]:
+    text = (ROOT / "docs" / "cli.md").read_text(encoding="utf-8").splitlines()
+    i = text.index(after)
+    out = []
+    for line in text[i + 1:]:
+        if line.startswith("```"):
+            return out
+        out.append(line)
+    raise AssertionError(f"no end of the block after {after!r}")
+
+
+def test_the_examples_in_docs_cli_md_are_as_printed(tmp_path):
+    from passagelog.formats import write_fixes, write_route
+
+    route = _route()
+    _, _, _, cols = _track(route)
+    with open(tmp_path / "route.csv", "w", encoding="utf-8", newline="") as fh:
+        write_route(route, "route-csv", fh)
+    with open(tmp_path / "track.nmea", "w", encoding="utf-8", newline="") as fh:
+        write_fixes(_fixes(cols), "nmea", fh)
+    files = ["--plan", str(tmp_path / "route.csv"), "--fixes", str(tmp_path / "track.nmea")]
+    r = run(["status", *files, "--now", "2026-03-01T18:00:00Z"])
+    assert r.stdout.splitlines() == _doc_block(
+        "$ passagelog status --plan route.csv --fixes track.nmea")
+    r = run(["review", *files, "--table", "fixes", "--format", "csv"])
+    head = [",".join(line.split(",")[:9]) for line in r.stdout.splitlines()[:3]]
+    assert head == _doc_block("$ passagelog review --plan route.csv --fixes track.nmea "
+                              "--table fixes --format csv | cut -d, -f1-9 | head -3")
