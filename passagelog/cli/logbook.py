@@ -252,6 +252,28 @@ def _emit_crafts(items, as_json, as_csv, one=False) -> None:
                   ("MAX KN", lambda r: r["max_speed_kn"])])
 
 
+@craft.command("show")
+@click.argument("name")
+@output_options
+@click.pass_context
+def craft_show(ctx, name, as_json, as_csv) -> None:
+    """Show one craft (by name or id)."""
+    with open_book(ctx, create=False) as book:
+        rec = craft_record(book.craft(name))
+    _show(rec, ["craft_id", "name", "kind", "usual_speed_kn", "max_speed_kn"], as_json, as_csv,
+          [(k, rec[k]) for k in rec])
+
+
+def _show(rec: dict, columns: list[str], as_json: bool, as_csv: bool, lines) -> None:
+    """One record: JSON object, one-row CSV of ``columns``, or label lines."""
+    if as_json and as_csv:
+        raise click.UsageError("choose one of --json and --csv")
+    if as_csv:
+        emit([rec], columns, False, True)
+    else:
+        emit_one(rec, as_json, lines)
+
+
 @craft.command("list")
 @output_options
 @click.pass_context
@@ -326,9 +348,9 @@ def voyage_list(ctx, as_json, as_csv) -> None:
 
 @voyage.command("show")
 @click.argument("name")
-@click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")
+@output_options
 @click.pass_context
-def voyage_show(ctx, name, as_json) -> None:
+def voyage_show(ctx, name, as_json, as_csv) -> None:
     """Show a voyage: its craft, plan revisions in force, record counts and latest fix."""
     from passagelog.nav.zonetime import format_zd
 
@@ -354,7 +376,7 @@ def voyage_show(ctx, name, as_json) -> None:
     if last:
         lines.append(("latest fix", f"{rec['latest_fix']['time_utc']} "
                                     f"{pos_text(last.lat, last.lon)}"))
-    emit_one(rec, as_json, lines)
+    _show(rec, VOYAGE_COLUMNS, as_json, as_csv, lines)
 
 
 @voyage.command("assign-plan")
@@ -519,17 +541,17 @@ def _fix_note(r: dict) -> str | None:
 
 @fix.command("show")
 @click.argument("fix_id", metavar="FIX_ID")
-@click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")
+@output_options
 @click.pass_context
-def fix_show(ctx, fix_id, as_json) -> None:
+def fix_show(ctx, fix_id, as_json, as_csv) -> None:
     """Show one fix record (current or superseded)."""
     fid = whole("fix", "id", fix_id)
     with open_book(ctx, create=False) as book:
         rec = fix_record(book, book.fix(fid))
-    emit_one(rec, as_json, [(k, rec[k]) for k in ["fix_id", "time_utc"]]
-             + [("position", pos_text(rec["lat"], rec["lon"]))]
-             + [(k, rec[k]) for k in FIX_COLUMNS if k not in ("fix_id", "time_utc", "lat",
-                                                              "lon")])
+    _show(rec, FIX_COLUMNS, as_json, as_csv,
+          [(k, rec[k]) for k in ["fix_id", "time_utc"]]
+          + [("position", pos_text(rec["lat"], rec["lon"]))]
+          + [(k, rec[k]) for k in FIX_COLUMNS if k not in ("fix_id", "time_utc", "lat", "lon")])
 
 
 # ---------------------------------------------------------------------------------------------
@@ -630,6 +652,20 @@ def entry_list(ctx, voyage_name, history, as_json, as_csv) -> None:
         ("TEXT", lambda r: "; ".join(x for x in (
             r["text"], f"corrects {r['supersedes']}: {r['reason']}" if r["supersedes"]
             else "") if x) or None)])
+
+
+@entry.command("show")
+@click.argument("entry_id", metavar="ENTRY_ID")
+@output_options
+@click.pass_context
+def entry_show(ctx, entry_id, as_json, as_csv) -> None:
+    """Show one log entry record (current or superseded)."""
+    eid = whole("log entry", "id", entry_id)
+    with open_book(ctx, create=False) as book:
+        rec = entry_record(book, book.entry(eid))
+    lines = [(k, rec[k]) for k in ENTRY_COLUMNS if k not in ("lat", "lon")]
+    lines.insert(5, ("position", pos_text(rec["lat"], rec["lon"])))
+    _show(rec, ENTRY_COLUMNS, as_json, as_csv, lines)
 
 
 # ---------------------------------------------------------------------------------------------

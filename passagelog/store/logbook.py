@@ -230,7 +230,13 @@ class Logbook:
         if not path.exists():
             if not create:
                 raise NotFoundError(f"logbook {str(path)!r} does not exist")
-            _create_private(path)
+            try:
+                _create_private(path)
+            except FileExistsError:
+                pass  # another process made it a moment ago
+            except OSError as exc:
+                raise StoreError(f"logbook {str(path)!r} cannot be created: "
+                                 f"{exc.strerror}") from None
         conn = sqlite3.connect(path, isolation_level=None, timeout=BUSY_TIMEOUT_S,
                                check_same_thread=False)
         try:

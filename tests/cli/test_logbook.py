@@ -319,6 +319,33 @@ def test_verify_clean_and_tampered(kept):
     assert r.exception.exit_code == 1
 
 
+def test_show_commands(kept):
+    db = kept
+    ok(db, "entry", "add", "Solent run", "event", "pilot away", "--time", "2026-03-01T08:30Z",
+       "--position", "50 45N 1 20W")
+    assert ok(db, "entry", "show", "1") == (
+        "entry_id      1\n"
+        "time_utc      2026-03-01T08:30:00Z\n"
+        "kind          event\n"
+        "text          pilot away\n"
+        "zd_minutes    -\n"
+        "position      50°45.000'N 001°20.000'W\n"
+        "supersedes    -\n"
+        "reason        -\n"
+        "recorded_utc  2026-03-02T08:00:08Z\n")
+    assert ok(db, "entry", "show", "1", "--csv") == (
+        "entry_id,time_utc,kind,text,zd_minutes,lat,lon,supersedes,reason,recorded_utc\n"
+        "1,2026-03-01T08:30:00Z,event,pilot away,,50.75,-1.3333333333333333,,,"
+        "2026-03-02T08:00:08Z\n")
+    assert ok(db, "craft", "show", "Kestrel", "--csv") == (
+        "craft_id,name,kind,usual_speed_kn,max_speed_kn\n1,Kestrel,ship,8.0,12.0\n")
+    assert ok(db, "voyage", "show", "Solent run", "--csv").splitlines() == [
+        "voyage_id,name,craft_id,craft,from_place,to_place,departure_utc,zd_minutes,plan_id,"
+        "plan", "1,Solent run,1,Kestrel,Cowes,Poole,2026-03-01T08:00:00Z,-60,1,Solent"]
+    assert json.loads(ok(db, "fix", "show", "2", "--json"))["remarks"] == "Hurst Castle abeam"
+    assert err(db, "entry", "show", "9") == "log entry 9 is not in the logbook"
+
+
 def test_reads_of_a_missing_logbook_create_nothing(tmp_path):
     db = str(tmp_path / "none.sqlite")
     assert err(db, "craft", "list").startswith("logbook ")
