@@ -146,7 +146,7 @@ def position_from_radial(beacon_lat: float, beacon_lon: float, radial: float,
     ``station_variation_e`` (east positive) and the radial true is ``radial + variation``.
     ``distance_m`` is the geodesic distance (a slant range must be corrected first).
     """
-    from passagelog.nav.triangles import parse_ew  # noqa: PLC0415
+    from passagelog.nav.triangles import parse_ew
 
     e = get_earth(earth)
     blat, blon = _position("beacon", beacon_lat, beacon_lon)
@@ -404,7 +404,7 @@ def _leg(e: Earth, sailing: str, lat1, lon1, lat2, lon2) -> tuple[float, float, 
     if sailing == "great-circle":
         s, a1, a2 = geodesic.inverse(lat1, lon1, lat2, lon2, e)
     elif sailing == "rhumb":
-        from passagelog.nav.rhumb import rhumb_inverse  # noqa: PLC0415
+        from passagelog.nav.rhumb import rhumb_inverse
 
         s, a1 = rhumb_inverse(lat1, lon1, lat2, lon2, e)
         a2 = a1
@@ -441,7 +441,7 @@ def alteration_at_waypoint(from_lat: float, from_lon: float, wp_lat: float, wp_l
     if sailing_in == "great-circle":
         wlat, wlon, _ = geodesic.direct(*p1, back, wo, e)
     else:
-        from passagelog.nav.rhumb import rhumb_direct  # noqa: PLC0415
+        from passagelog.nav.rhumb import rhumb_direct
 
         wlat, wlon = rhumb_direct(*p1, back, wo, e)
     return Alteration(c_in, c_out, alt, s_in, s_out, r, wo, wlat, wlon)

@@ -129,7 +129,7 @@ def time_to_cover_s(distance_m: float, speed_kn: float) -> float:
 
 
 def _rhumb():
-    from passagelog.nav import rhumb  # noqa: PLC0415  (a sibling module; imported when used)
+    from passagelog.nav import rhumb  # a sibling module, imported when used
 
     return rhumb
 

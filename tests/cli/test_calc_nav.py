@@ -39,7 +39,7 @@ def js(args):
 
 def run_main(args):
     return subprocess.run([sys.executable, "-m", "passagelog", "calc", *args],
-                          capture_output=True, text=True, cwd=ROOT)
+                          capture_output=True, text=True, cwd=ROOT, check=False)
 
 
 def miss(lat1, lon1, lat2, lon2):

@@ -8,7 +8,6 @@ observed from it, feeds the observations back and expects the ship back to withi
 from __future__ import annotations
 
 import math
-import random
 
 import pytest
 from geographiclib.geodesic import Geodesic

@@ -8,18 +8,24 @@ from __future__ import annotations
 
 import cmath
 import math
+import shutil
+import subprocess
 
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from passagelog.errors import GeometryError, InputError
+from passagelog.nav.earth import SPHERE_NM
+from passagelog.nav.rhumb import rhumb_direct, rhumb_inverse
 from passagelog.nav.triangles import (
-    convert_heading,
     compass_to_magnetic,
+    convert_heading,
     course_for_speed_made_good,
     course_to_steer,
+    dead_reckoning,
     distance_run_m,
+    estimated_position,
     find_wind,
     format_ew,
     ground_velocity,
@@ -27,6 +33,7 @@ from passagelog.nav.triangles import (
     magnetic_to_true,
     normalize_course,
     parse_ew,
+    set_and_drift,
     signed_angle,
     time_to_cover_s,
     true_to_magnetic,
@@ -158,6 +165,7 @@ def test_course_to_steer_makes_good_the_track(track, stw, set_, ratio, leeway):
     # and the module's own forward function agrees
     cmg, smg = ground_velocity(r.course_to_steer, stw, set_, drift, leeway)
     assert angle_diff(cmg, track) < 1e-8
+    assert smg == pytest.approx(r.speed_made_good_kn, rel=1e-9, abs=1e-12)
 
 
 @settings(max_examples=200, deadline=None)
@@ -338,17 +346,6 @@ def test_true_magnetic_compass_round_trip(t, var, dev):
 
 # ---------------------------------------------------------------------------------------------
 # dead reckoning on the ellipsoid (a steady course is a rhumb line)
-
-import shutil  # noqa: E402
-import subprocess  # noqa: E402
-
-from passagelog.nav.earth import SPHERE_NM  # noqa: E402
-from passagelog.nav.rhumb import rhumb_direct, rhumb_inverse  # noqa: E402
-from passagelog.nav.triangles import (  # noqa: E402
-    dead_reckoning,
-    estimated_position,
-    set_and_drift,
-)
 
 NM = 1852.0
 KN = NM / 3600.0
