@@ -61,8 +61,8 @@ def build_plan(n_wp: int = 100, seed: int = 7) -> Route:
 
 
 def build_track(route: Route, n: int, seed: int = 11) -> dict:
-    """``n`` fixes spread evenly over 30 days along the route, wandering up to ~2.5 km off
-    the line (a slow sinusoid plus GNSS-like noise)."""
+    """``n`` fixes spread evenly over 30 days along the route, wandering up to ~2 km off
+    the line (a slow sinusoid plus GNSS-like noise), a little past the last waypoint."""
     rng = np.random.default_rng(seed)
     wps = route.waypoints
     legs = [make_leg(wps[k].lat, wps[k].lon, wps[k + 1].lat, wps[k + 1].lon, p.sailing)
@@ -80,11 +80,10 @@ def build_track(route: Route, n: int, seed: int = 11) -> dict:
             la, lo = lg.points_at_np(s[sel] - cum[j])
             lat[sel], lon[sel] = la, lo
     off = 2000.0 * np.sin(2 * np.pi * t / 86400.0 * 0.7) + rng.normal(0.0, 8.0, n)
-    azi = rng.uniform(0.0, 360.0, n) * 0 + 0.0  # north-south wander
-    lat, lon, _ = direct_np(lat, lon, azi, off)
-    sog = np.full(n, 14.0)
+    lat, lon, _ = direct_np(lat, lon, np.zeros(n), off)  # wander north and south
+    # heading and speed through the water logged with every fix (an NMEA HDT + VHW feed)
     return {"time_s": t, "lat": lat, "lon": lon, "heading": np.full(n, 90.0),
-            "stw_kn": sog, "legs": legs, "k": k}
+            "stw_kn": np.full(n, 14.0), "legs": legs, "k": k}
 
 
 def baseline_loop(route: Route, track: dict, count: int) -> tuple[float, float]:
