@@ -20,7 +20,7 @@ import numpy as np
 
 from passagelog.errors import InputError, IntegrityError, NotFoundError, StoreError
 from passagelog.model import (
-    Craft, Fix, LegPlan, LogEntry, Route, ScheduleItem, Voyage, Waypoint,
+    Craft, Fix, LegPlan, LogEntry, Route, ScheduleItem, Voyage, Waypoint, check_utc,
 )
 from passagelog.store import chain as ch
 from passagelog.store.schema import APPEND_ONLY_TABLES, MIGRATIONS, SCHEMA_VERSION
@@ -227,6 +227,8 @@ class Logbook:
         release is refused. ``clock`` (returning aware UTC) stamps records; default: now.
         """
         path = Path(path)
+        if "\x00" in str(path):
+            raise StoreError(f"logbook path {str(path)!r} holds a NUL character")
         if not path.exists():
             if not create:
                 raise NotFoundError(f"logbook {str(path)!r} does not exist")
@@ -237,8 +239,11 @@ class Logbook:
             except OSError as exc:
                 raise StoreError(f"logbook {str(path)!r} cannot be created: "
                                  f"{exc.strerror}") from None
-        conn = sqlite3.connect(path, isolation_level=None, timeout=BUSY_TIMEOUT_S,
-                               check_same_thread=False)
+        try:
+            conn = sqlite3.connect(path, isolation_level=None, timeout=BUSY_TIMEOUT_S,
+                                   check_same_thread=False)
+        except sqlite3.Error as exc:  # a directory, a path through a file
+            raise StoreError(f"logbook {str(path)!r} cannot be opened: {exc}") from None
         try:
             conn.execute(f"PRAGMA busy_timeout = {int(BUSY_TIMEOUT_S * 1000)}")
             mode = conn.execute("PRAGMA journal_mode = WAL").fetchone()[0]
@@ -620,8 +625,7 @@ class Logbook:
                     from_utc: datetime | None = None) -> PlanAssignment:
         """Put a plan revision (default: the latest) in force on a voyage from ``from_utc``
         (None: from the start of the voyage)."""
-        if from_utc is not None:
-            Fix(from_utc, 0.0, 0.0)  # the same check as any record time
+        check_utc("plan assignment", "from time", from_utc)
         with self.transaction():
             vid = self._voyage_row(voyage)[0]
             pid, pname, _ = self._plan_row(plan)

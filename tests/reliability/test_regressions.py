@@ -2,12 +2,17 @@
 
 from __future__ import annotations
 
+import sys
 from datetime import datetime, timezone
+from pathlib import Path
 
 import pytest
 
-from passagelog.errors import FormatError
-from passagelog.formats import read_fixes, read_routes
+sys.path.insert(0, str(Path(__file__).parent))
+import relkit  # noqa: E402
+
+from passagelog.errors import FormatError  # noqa: E402
+from passagelog.formats import read_fixes, read_routes  # noqa: E402
 
 T0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
 
@@ -102,14 +107,22 @@ def test_regression_fix_satellites_beyond_int32(tmp_path):
 
 def test_regression_calc_batch_not_utf8(tmp_path):
     # ``calc leg --batch FILE`` on a binary file (a logbook): UnicodeDecodeError was a traceback.
-    import sys
-    from pathlib import Path
-
-    sys.path.insert(0, str(Path(__file__).parent))
-    import relkit
-
     p = tmp_path / "book.sqlite"
     p.write_bytes(b"SQLite format 3\x00\x10\x00\x02\x02\x00@  \xa6\xff\xfe")
     for cmd in ("leg", "offset"):
         code, out, err = relkit.run_cli(["calc", cmd, "--batch", str(p)])
         assert code == 1 and out == "" and "not UTF-8 text" in err and "book.sqlite" in err, err
+
+
+def test_regression_logbook_path_unopenable(tmp_path):
+    # ``--db`` naming a directory or a path through a file: sqlite3.OperationalError escaped
+    # Logbook.open (the connect was outside its try); a NUL in the path: ValueError escaped.
+    from passagelog.errors import StoreError
+    from passagelog.store import Logbook
+
+    (tmp_path / "afile").write_text("")
+    for bad in (tmp_path, tmp_path / "afile" / "x.sqlite", str(tmp_path / "a\x00b")):
+        with pytest.raises(StoreError, match="logbook"):
+            Logbook.open(bad)
+    code, _out, err = relkit.run_cli(["--db", str(tmp_path), "verify"])
+    assert code == 1 and "logbook" in err and "Traceback" not in err
