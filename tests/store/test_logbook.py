@@ -50,6 +50,22 @@ def test_other_sqlite_file_is_not_taken_for_a_logbook(tmp_path):
         Logbook.open(path)
 
 
+def test_a_file_that_is_not_sqlite_is_refused(tmp_path):
+    path = tmp_path / "notes.sqlite"
+    path.write_text("fixes: none yet\n" * 100)
+    with pytest.raises(StoreError, match="cannot be opened: file is not a database"):
+        Logbook.open(path)
+    assert path.read_text() == "fixes: none yet\n" * 100
+
+
+def test_plan_assignment_time_must_be_utc(book, voyage, route):
+    book.create_plan(route)
+    with pytest.raises(InputError, match="plan assignment from time .* must be a "
+                                         "timezone-aware UTC time"):
+        book.assign_plan(voyage, "Solent", from_utc=datetime(2026, 3, 1))
+    assert book.plan_assignments(voyage) == []
+
+
 def test_craft_round_trip_and_unique_names(book):
     c = book.add_craft(Craft("Kestrel", kind="ship", usual_speed_kn=8, max_speed_kn=12.5))
     assert c.craft_id == 1
