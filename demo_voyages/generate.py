@@ -18,7 +18,7 @@ from __future__ import annotations
 import json
 import math
 import sys
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from datetime import datetime, timedelta, timezone
 from pathlib import Path
 
@@ -125,7 +125,7 @@ def _xte_nm(sc: Scenario, leg_no: int, s_nm: float, dist_nm: float, phase: float
 
 
 def build(sc: Scenario, out: Path) -> dict:
-    route = read_route(out / "route.csv")
+    route = replace(read_route(out / "route.csv"), name=sc.title)
     rng = np.random.default_rng(sc.seed)
     legs = [make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing)
             for a, b, plan in zip(route.waypoints, route.waypoints[1:], route.legs)]
