@@ -271,7 +271,8 @@ class PlanView(Vertical):
         if ok:
             new.arrival_radius_m = value
         message = self.query_one("#plan-message", Static)
-        if vars(new) != vars(row):
+        changed = vars(new) != vars(row)
+        if changed:
             self._remember()
             self.rows[i] = new
             self.dirty = True
@@ -279,7 +280,7 @@ class PlanView(Vertical):
         if errors:
             message.update("[b]Not taken:[/b] " + "; ".join(errors))
             message.add_class("-bad")
-        else:
+        elif changed or message.has_class("-bad"):
             message.update(f"Row {i + 1} ({new.name}) updated.")
             message.remove_class("-bad")
         return not errors

@@ -6,39 +6,33 @@ from passagelog import CAUTION
 from passagelog.tui.app import PassagelogApp
 
 
-async def test_help_shows_bindings_and_the_caution(session):
-    app = PassagelogApp(session=session)
+async def test_help_palette_and_light_dark(session):
+    from passagelog.tui.help_screen import HelpScreen
+
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
     async with app.run_test(size=(100, 30)) as pilot:
         await pilot.press("f1")
         await pilot.pause()
-        from passagelog.tui.help_screen import HelpScreen
-
         assert isinstance(app.screen, HelpScreen)
         caution = str(app.screen.query_one("#help-caution").render())
         assert CAUTION.split()[0] in caution and "not a certified" in caution
         await pilot.press("escape")
         assert not isinstance(app.screen, HelpScreen)
-
-
-async def test_palette_offers_every_plan_action(session):
-    app = PassagelogApp(session=session)
-    async with app.run_test(size=(100, 30)):
         titles = {c.title for c in app.get_system_commands(app.screen)}
-    for wanted in ("Help", "Show Plan", "Show Watch", "Light or dark", "Plan: insert waypoint",
-                   "Plan: delete waypoint", "Plan: reverse", "Plan: save revision", "Quit"):
-        assert wanted in titles
-
-
-async def test_light_and_dark(session):
-    app = PassagelogApp(session=session)
-    async with app.run_test(size=(100, 30)) as pilot:
         assert app.theme == "textual-dark"
         await pilot.press("f9")
         assert app.theme == "textual-light"
+    for wanted in ("Help", "Show Plan", "Show Log", "Show Watch", "Show Review",
+                   "Light or dark", "Plan: insert waypoint", "Plan: delete waypoint",
+                   "Plan: move waypoint up", "Plan: reverse", "Plan: undo",
+                   "Plan: save revision", "Log: log the fix in the form",
+                   "Log: correct the selected fix", "Log: add the log entry",
+                   "Watch: refresh now", "Review: recompute", "Review: XTE plot", "Quit"):
+        assert wanted in titles
 
 
 async def test_insert_a_waypoint_edit_it_and_save_a_revision(session):
-    app = PassagelogApp(session=session)
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
     async with app.run_test(size=(100, 30)) as pilot:
         plan = app.query_one("#plan-view")
         await pilot.pause()
@@ -94,7 +88,7 @@ async def test_insert_a_waypoint_edit_it_and_save_a_revision(session):
 
 
 async def test_delete_reverse_and_undo(session):
-    app = PassagelogApp(session=session)
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
     async with app.run_test(size=(80, 24)) as pilot:
         plan = app.query_one("#plan-view")
         await pilot.pause()

@@ -8,10 +8,11 @@ from passagelog.tui.app import PassagelogApp
 
 
 async def _type(pilot, app, field_id, text):
+    """Put ``text`` in a field as a paste would (the Plan test types key by key)."""
     field = app.query_one(field_id)
     field.focus()
-    field.value = ""
-    await pilot.press(*text)
+    field.value = text
+    await pilot.pause()
 
 
 async def test_log_a_fix_see_it_listed_and_correct_it(session):
@@ -55,7 +56,8 @@ async def test_log_a_fix_see_it_listed_and_correct_it(session):
         await pilot.press("enter")  # no reason yet: refused
         await pilot.pause()
         assert isinstance(app.screen, CorrectionDialog)
-        await pilot.press(*"misread the latitude", "enter")
+        app.screen.query_one("#corr-reason").value = "misread the latitude"
+        await pilot.press("enter")
         await pilot.pause()
         await app.workers.wait_for_complete()
         await pilot.pause()
