@@ -427,58 +427,48 @@ class Review:
         """All rows of ``table`` as a list (see :meth:`iter_rows`)."""
         return list(self.iter_rows(table))
 
-    def _fix_rows(self, block: int = 20000) -> Iterator[dict]:
+    def fix_blocks(self, block: int = 20000) -> Iterator[dict[str, list]]:
+        """The fixes table in blocks of columns: each block maps every column of
+        :data:`TABLE_COLUMNS` ``["fixes"]`` to a list of row values (None where missing),
+        the same values :meth:`iter_rows` gives, for writers that go column by column."""
         fx = self.fixes
         names = [tuple(w.name for w in r.waypoints) for r in self.routes]
+        time_cols = {"time_utc": "time_s", "eta_wp_plan_utc": "eta_wp_plan_s",
+                     "eta_dest_plan_utc": "eta_dest_plan_s", "eta_wp_smg_utc": "eta_wp_smg_s",
+                     "eta_dest_smg_utc": "eta_dest_smg_s"}
+        float_cols = ("lat", "lon", "xte_m", "along_m", "leg_to_go_m", "route_to_go_m",
+                      "xtl_m", "dtw_m", "btw", "cmg_prev", "smg_prev_kn", "cmg_dep",
+                      "dmg_dep_m", "smg_dep_kn", "smg_window_kn", "delay_s", "set", "drift_kn")
         for a in range(0, len(fx), block):
             b = min(len(fx), a + block)
-            cols = {}
-            for name in ("time_s", "eta_wp_plan_s", "eta_dest_plan_s", "eta_wp_smg_s",
-                         "eta_dest_smg_s"):
+            cols: dict[str, list] = {}
+            for key, name in time_cols.items():
                 arr = getattr(fx, name)[a:b]
-                text = iso_z_np(np.where(np.isfinite(arr), arr, 0.0))
-                cols[name] = [t if ok else None for t, ok in zip(text.tolist(),
-                                                                  np.isfinite(arr).tolist())]
-            floats = {}
-            for name in ("lat", "lon", "xte_m", "along_m", "leg_to_go_m", "route_to_go_m",
-                         "xtl_m", "dtw_m", "btw", "cmg_prev", "smg_prev_kn", "cmg_dep",
-                         "dmg_dep_m", "smg_dep_kn", "smg_window_kn", "delay_s", "set",
-                         "drift_kn"):
-                arr = getattr(fx, name)[a:b]
-                floats[name] = [x if x == x else None for x in arr.tolist()]
-            leg = fx.leg[a:b].tolist()
+                ok = np.isfinite(arr)
+                text = iso_z_np(np.where(ok, arr, 0.0)).tolist()
+                cols[key] = [t if good else None for t, good in zip(text, ok.tolist())]
+            for name in float_cols:
+                cols[name] = [x if x == x else None for x in getattr(fx, name)[a:b].tolist()]
+            x = fx.xte_m[a:b]
+            side = np.where(x > 0, "R", np.where(x < 0, "L", "")).tolist()
+            cols["side"] = [s if v == v else None for s, v in zip(side, x.tolist())]
             rev = fx.revision[a:b].tolist()
-            phase = fx.phase[a:b].tolist()
-            inside = fx.inside_xtl[a:b].tolist()
-            suspect = fx.suspect[a:b].tolist()
-            fix_id = fx.fix_id[a:b].tolist()
-            xte = floats["xte_m"]
-            for j in range(b - a):
-                r, k = rev[j], leg[j]
-                x = xte[j]
-                yield {
-                    "time_utc": cols["time_s"][j], "lat": floats["lat"][j],
-                    "lon": floats["lon"][j], "leg": k, "xte_m": x,
-                    "along_m": floats["along_m"][j], "leg_to_go_m": floats["leg_to_go_m"][j],
-                    "route_to_go_m": floats["route_to_go_m"][j], "inside_xtl": inside[j],
-                    "xtl_m": floats["xtl_m"][j],
-                    "side": None if x is None else ("R" if x > 0 else "L" if x < 0 else ""),
-                    "revision": r,
-                    "phase": PHASES[phase[j]], "suspect": suspect[j],
-                    "from_wp": names[r][k - 1], "to_wp": names[r][k],
-                    "dtw_m": floats["dtw_m"][j], "btw": floats["btw"][j],
-                    "cmg_prev": floats["cmg_prev"][j], "smg_prev_kn": floats["smg_prev_kn"][j],
-                    "cmg_dep": floats["cmg_dep"][j], "dmg_dep_m": floats["dmg_dep_m"][j],
-                    "smg_dep_kn": floats["smg_dep_kn"][j],
-                    "smg_window_kn": floats["smg_window_kn"][j],
-                    "eta_wp_plan_utc": cols["eta_wp_plan_s"][j],
-                    "eta_dest_plan_utc": cols["eta_dest_plan_s"][j],
-                    "eta_wp_smg_utc": cols["eta_wp_smg_s"][j],
-                    "eta_dest_smg_utc": cols["eta_dest_smg_s"][j],
-                    "delay_s": floats["delay_s"][j], "set": floats["set"][j],
-                    "drift_kn": floats["drift_kn"][j],
-                    "fix_id": None if fix_id[j] < 0 else fix_id[j],
-                }
+            leg = fx.leg[a:b].tolist()
+            cols["leg"] = leg
+            cols["revision"] = rev
+            cols["inside_xtl"] = fx.inside_xtl[a:b].tolist()
+            cols["phase"] = [PHASES[p] for p in fx.phase[a:b].tolist()]
+            cols["suspect"] = fx.suspect[a:b].tolist()
+            cols["from_wp"] = [names[r][k - 1] for r, k in zip(rev, leg)]
+            cols["to_wp"] = [names[r][k] for r, k in zip(rev, leg)]
+            cols["fix_id"] = [None if i < 0 else i for i in fx.fix_id[a:b].tolist()]
+            yield {c: cols[c] for c in TABLE_COLUMNS["fixes"]}
+
+    def _fix_rows(self, block: int = 20000) -> Iterator[dict]:
+        keys = TABLE_COLUMNS["fixes"]
+        for cols in self.fix_blocks(block):
+            for values in zip(*(cols[c] for c in keys)):
+                yield dict(zip(keys, values))
 
     # -------------------------------------------------------------------------- watch
     def status(self, row: int = -1) -> "Status":
