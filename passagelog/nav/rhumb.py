@@ -174,8 +174,9 @@ def _py_sinc(x: float) -> float:
 _NP = SimpleNamespace(
     sin=np.sin, cos=np.cos, tan=np.tan, sqrt=np.sqrt, asinh=np.arcsinh, atanh=np.arctanh,
     atan=np.arctan, atan2=np.arctan2, sinh=np.sinh, hypot=np.hypot, radians=np.radians,
-    degrees=np.degrees, mod=np.mod, abs=np.abs, sign=np.sign, where=np.where, sinc=np.sinc,
-    isinf=np.isinf, clip=np.clip, quadrant=_np_quadrant,
+    degrees=np.degrees, mod=np.mod, fmod=np.fmod, abs=np.abs, sign=np.sign, where=np.where,
+    sinc=np.sinc,
+    isinf=np.isinf, clip=np.clip, quadrant=_np_quadrant, asin=np.arcsin,
     any=lambda x: bool(np.any(x)),
     quiet=lambda: np.errstate(invalid="ignore", divide="ignore", over="ignore"),
 )
@@ -183,10 +184,12 @@ _NP = SimpleNamespace(
 _PY = SimpleNamespace(
     sin=math.sin, cos=math.cos, tan=math.tan, sqrt=math.sqrt, asinh=math.asinh,
     atanh=math.atanh, atan=math.atan, atan2=math.atan2, sinh=math.sinh, hypot=math.hypot,
-    radians=math.radians, degrees=math.degrees, mod=lambda x, y: x % y, abs=abs,
+    radians=math.radians, degrees=math.degrees, mod=lambda x, y: x % y, fmod=math.fmod,
+    abs=abs,
     sign=lambda x: 0.0 if x == 0.0 else math.copysign(1.0, x),
     where=lambda c, a, b: a if c else b, sinc=_py_sinc, isinf=math.isinf,
     clip=lambda x, lo, hi: min(max(x, lo), hi), quadrant=_py_quadrant, any=bool,
+    asin=math.asin,
     quiet=lambda: _NULL,
 )
 
@@ -263,22 +266,26 @@ def _dmu_dphi(xp, fig: _Figure, phi1, phi2):
     return v
 
 
+def _sin_series(xp, coeffs, x):
+    """sum_k coeffs[k-1] sin(2 k x) by Clenshaw's recurrence (two trigonometric calls)."""
+    if not any(coeffs):
+        return 0.0 * x
+    two_cos = 2.0 * xp.cos(2.0 * x)
+    b1 = 0.0 * x
+    b2 = b1
+    for ck in reversed(coeffs):
+        b1, b2 = ck + two_cos * b1 - b2, b1
+    return b1 * xp.sin(2.0 * x)
+
+
 def _mu(xp, fig: _Figure, phi):
     """Rectifying latitude (radians) of geodetic latitude ``phi`` (radians)."""
-    mu = phi
-    for k, ck in enumerate(fig.c, start=1):
-        if ck != 0.0:
-            mu = mu + ck * xp.sin(2 * k * phi)
-    return mu
+    return phi + _sin_series(xp, fig.c, phi)
 
 
 def _phi_of_mu(xp, fig: _Figure, mu):
     """Geodetic latitude (radians) of rectifying latitude ``mu`` (radians)."""
-    phi = mu
-    for k, dk in enumerate(fig.d, start=1):
-        if dk != 0.0:
-            phi = phi + dk * xp.sin(2 * k * mu)
-    return phi
+    return mu + _sin_series(xp, fig.d, mu)
 
 
 def _psi_rad(xp, fig: _Figure, phi):
@@ -289,7 +296,7 @@ def _psi_rad(xp, fig: _Figure, phi):
     return psi
 
 
-def _phi_of_psi(xp, fig: _Figure, psi):
+def _phi_of_psi(xp, fig: _Figure, psi, iterations: int = 5):
     """Geodetic latitude (radians) of isometric latitude ``psi``: Newton's method on tan(phi)
     (as in Karney 2011, section 2)."""
     taup = xp.sinh(xp.clip(psi, -40.0, 40.0))
@@ -298,7 +305,7 @@ def _phi_of_psi(xp, fig: _Figure, psi):
     else:
         e2m = 1.0 - fig.e2
         tau = taup / e2m
-        for _ in range(5):
+        for _ in range(iterations):
             h = xp.hypot(1.0, tau)
             sig = xp.sinh(fig.e * xp.atanh(fig.e * tau / h))
             taupa = tau * xp.hypot(1.0, sig) - sig * h
@@ -321,21 +328,21 @@ def _sincosd(xp, deg):
 
 def _angdiff(xp, lon1, lon2):
     """lon2 - lon1 reduced to [-180, 180], degrees; exactly 180 apart keeps the sign of
-    lon2 - lon1 as given (as GeographicLib's AngDiff, so RhumbSolve, does)."""
-    raw = lon2 - lon1
-    d = xp.mod(raw, 360.0)  # [0, 360]
-    d = xp.where(d >= 360.0, 0.0, d)
-    d = xp.where(d > 180.0, d - 360.0, d)
-    return xp.where(d == 180.0, xp.where(raw < 0.0, -180.0, 180.0), d)
+    lon2 - lon1 as given (as GeographicLib's AngDiff, so RhumbSolve, does). fmod and the
+    shift by 360 are exact, so a small difference keeps all its digits."""
+    d = xp.fmod(lon2 - lon1, 360.0)  # (-360, 360), exact
+    return xp.where(d > 180.0, d - 360.0, xp.where(d < -180.0, d + 360.0, d))
 
 
 def _norm_lon(xp, lon):
-    x = xp.mod(lon + 180.0, 360.0) - 180.0
-    return xp.where(x >= 180.0, x - 360.0, x) + 0.0  # mod may round up to exactly 360
+    """Longitude reduced to [-180, 180) exactly."""
+    x = xp.fmod(lon, 360.0)
+    return xp.where(x >= 180.0, x - 360.0, xp.where(x < -180.0, x + 360.0, x)) + 0.0
 
 
 def _norm_course(xp, c):
-    c = xp.mod(c, 360.0)
+    c = xp.fmod(c, 360.0)
+    c = xp.where(c < 0.0, c + 360.0, c)
     return xp.where(c >= 360.0, 0.0, c) + 0.0
 
 
@@ -485,11 +492,23 @@ def _inverse_core(xp, fig: _Figure, lat1, lon1, lat2, lon2):
     return dist + 0.0, _norm_course(xp, course)
 
 
-def _direct_lat_lon(xp, fig: _Figure, phi1, mu1, lon1, sina, cosa, s):
+#: On courses at least this far from east-west (|cos| >= 0.1, within some 84 degrees of north
+#: or south) the change of longitude is computed as tan(course) * d_psi, which is then
+#: well conditioned (error below 1e-14 radian); nearer east-west, by the divided differences.
+_STEEP_COS = 0.1
+
+
+def _direct_lat_lon(xp, fig: _Figure, phi1, mu1, lon1, sina, cosa, s, psi1=None):
     """End (phi2 [rad], unreduced lon2 [deg]) of the rhumb line from (phi1 [rad], lon1 [deg])
     on the course of sine ``sina`` and cosine ``cosa`` over ``s`` metres. No checks: phi1 must
-    not be a pole and ``|mu1 + s cosa / A|`` must stay below pi/2."""
+    not be a pole and ``|mu1 + s cosa / A|`` must stay below pi/2. With a single course
+    (``cosa`` a float) at least :data:`_STEEP_COS` from east-west and ``psi1`` given, the
+    cheaper form ``d_lambda = tan(course) * (psi2 - psi1)`` is used."""
     mu2 = mu1 + s * cosa / fig.A
+    if psi1 is not None and isinstance(cosa, float) and abs(cosa) >= _STEEP_COS:
+        phi2 = _phi_of_mu(xp, fig, mu2)
+        dlam = (sina / cosa) * (_psi_rad(xp, fig, phi2) - psi1)
+        return phi2, lon1 + xp.degrees(dlam)
     phi2 = xp.where(cosa == 0.0, phi1, _phi_of_mu(xp, fig, mu2))  # due E/W: the parallel
     # d_lambda = s sin(alpha) / (DM/Dpsi) = s sin(alpha) (Dpsi/Dphi) / (A Dmu/Dphi)
     dlam = s * sina * _dpsi_dphi(xp, fig, phi2, phi1) / (fig.A * _dmu_dphi(xp, fig, phi2, phi1))
@@ -610,3 +629,227 @@ def rhumb_direct(lat1: float, lon1: float, course: float, distance_m: float,
     _check_finite("course", c, "a finite course in degrees true")
     _check_finite("distance_m", s, "a finite distance in metres")
     return _direct_core(_PY, fig, la1, lo1, c, s)
+
+
+# ----------------------------------------------------------------------------------------
+# A rhumb-line leg and the offsets of positions from it
+
+
+class RhumbLeg:
+    """A rhumb-line leg from (lat1, lon1) to (lat2, lon2), degrees, on ``earth``.
+
+    Attributes: ``distance_m``; ``course`` (true, constant: ``initial_course ==
+    final_course == course``); ``sailing == "rhumb"``; the end points as given (longitudes
+    reduced to [-180, 180)); ``earth``.
+
+    Offsets follow DESIGN.md: the cross-track error ``xte_m`` and the along-track distance
+    ``along_m`` of a position are measured to the foot of the shortest (geodesic) connection
+    from the position to the leg's line, the rhumb line extended past both ends. ``xte_m`` is
+    positive to the right (starboard) of the direction of travel; ``along_m`` is negative
+    before the start and exceeds ``distance_m`` past the end.
+
+    The foot is found in two stages. First in the Mercator plane, where the rhumb line is
+    straight and angles are true (the projection is conformal): the perpendicular from the
+    position gives an along-track estimate. Then Newton's method on the along-track
+    parameter ``s``: a geodesic inverse from the foot estimate R(s) to the position P
+    (pyproj's vectorised port of Karney 2013) gives the distance ``d`` and the azimuth at R,
+    and ``s`` moves by ``d cos(azimuth - course)``, divided by ``1 + kappa * xte`` to allow
+    for the line's geodesic curvature ``kappa = sin(course) tan(lat) / N`` (Liouville's
+    formula for a loxodrome; N the prime-vertical radius). The iteration stops when the step
+    is below :data:`OFFSET_TOL_M`; positions near the line need two inversions, positions
+    hundreds of nautical miles off three or four. ``|xte_m|`` is the geodesic distance at
+    the foot.
+
+    A leg with coincident ends has no course and a leg ending at a pole no defined line:
+    both raise :class:`GeometryError`.
+    """
+
+    sailing = "rhumb"
+
+    def __init__(self, lat1: float, lon1: float, lat2: float, lon2: float,
+                 earth: Earth | str = WGS84):
+        self.earth = get_earth(earth)
+        fig = self._fig = _figure(self.earth)
+        la1, lo1, la2, lo2 = (_scalar(n, v) for n, v in
+                              (("lat1", lat1), ("lon1", lon1), ("lat2", lat2), ("lon2", lon2)))
+        for name, v in (("lat1", la1), ("lat2", la2)):
+            _check_lat(name, v)
+        _check_finite("lon1", lo1, _LON)
+        _check_finite("lon2", lo2, _LON)
+        where = f"rhumb leg from ({la1!r}, {lo1!r}) to ({la2!r}, {lo2!r})"
+        if abs(la1) == 90.0 or abs(la2) == 90.0:
+            raise GeometryError(
+                f"{where}: an end at a pole leaves the line's longitude undefined; "
+                "use end points with |lat| < 90"
+            )
+        self.lat1, self.lon1 = la1, float(_norm_lon(_PY, lo1))
+        self.lat2, self.lon2 = la2, float(_norm_lon(_PY, lo2))
+        self.distance_m, self.course = _inverse_core(_PY, fig, la1, lo1, la2, lo2)
+        if self.distance_m == 0.0:
+            raise GeometryError(
+                f"{where}: the two ends coincide, so the leg has no course; "
+                "a leg needs two distinct points"
+            )
+        self.initial_course = self.final_course = self.course
+        self._sina, self._cosa = _sincosd(_PY, self.course)
+        self._phi1 = math.radians(la1)
+        self._mu1 = _mu(_PY, fig, self._phi1)
+        self._psi1 = _psi_rad(_PY, fig, self._phi1)
+        dlon = _angdiff(_PY, lo1, lo2)
+        self._lam_mid = math.radians(dlon) / 2.0  # Mercator easting of the leg's middle
+        self._lon_mid = lo1 + dlon / 2.0
+        # Along-track limits that keep the extended line off the poles (within ~1 km).
+        if self._cosa != 0.0:
+            room = fig.A * (math.pi / 2.0) * (1.0 - 1e-4)
+            lims = sorted(((-room - fig.A * self._mu1) / self._cosa,
+                           (room - fig.A * self._mu1) / self._cosa))
+            self._s_min, self._s_max = lims
+        else:
+            self._s_min, self._s_max = -math.inf, math.inf
+
+    def __repr__(self) -> str:
+        return (f"RhumbLeg({self.lat1!r}, {self.lon1!r}, {self.lat2!r}, {self.lon2!r}, "
+                f"earth={self.earth.name!r})")
+
+    # -- points on the line
+
+    def point_at(self, along_m: float) -> tuple[float, float]:
+        """The point ``along_m`` metres along the line from the start (negative: before it;
+        beyond ``distance_m``: past the end): ``(lat, lon)``."""
+        return rhumb_direct(self.lat1, self.lon1, self.course, along_m, self.earth)
+
+    def points_at_np(self, along_m):
+        """Batch :meth:`point_at`: ``(lats, lons)`` arrays."""
+        return rhumb_direct_np(self.lat1, self.lon1, self.course, along_m, self.earth)
+
+    def _points(self, s):
+        phi, lon = _direct_lat_lon(_NP, self._fig, self._phi1, self._mu1, self.lon1,
+                                   self._sina, self._cosa, s)
+        return np.degrees(phi), lon
+
+    # -- offsets
+
+    def offset(self, lat: float, lon: float) -> tuple[float, float]:
+        """``(xte_m, along_m)`` of the position (lat, lon): see the class notes. The same
+        iteration as :meth:`offsets_np`, on Python floats, with geographiclib's scalar
+        geodesic inverse (so it is also the per-position baseline of the benchmarks)."""
+        plat, plon = _scalar("lat", lat), _scalar("lon", lon)
+        _check_lat("lat", plat)
+        _check_finite("lon", plon, _LON)
+        s = self._initial_along(_PY, plat, plon)
+        prev = math.nan  # no step yet: no rate of convergence
+        for _ in range(OFFSET_MAX_ITER):
+            phi, rlon = _direct_lat_lon(_PY, self._fig, self._phi1, self._mu1, self.lon1,
+                                        self._sina, self._cosa, s, self._psi1)
+            d, azi, _ = _geodesic.inverse(math.degrees(phi), _norm_lon(_PY, rlon), plat, plon,
+                                          self.earth)
+            step, v = self._step(_PY, phi, azi, d)
+            if self._accept(_PY, step, prev):
+                return v + 0.0, s + step + 0.0
+            prev = step
+            s = min(max(s + step, self._s_min), self._s_max)
+        raise self._no_foot(0, plat, plon, 1)
+
+    def offsets_np(self, lats, lons) -> tuple[np.ndarray, np.ndarray]:
+        """Batch :meth:`offset` over broadcast arrays: ``(xte_m, along_m)`` float64 arrays.
+
+        Raises :class:`GeometryError` (naming the first such position) if the foot of a
+        position cannot be found, which happens only for positions far from a line that
+        runs near a pole (where the extended line spirals into the pole and the distance
+        to it has several minima).
+        """
+        lats, lons = _arrays(lats, lons)
+        _check_lat("lat", lats)
+        _check_finite("lon", lons, _LON)
+        shape = lats.shape
+        plat = lats.ravel()
+        plon = lons.ravel()
+        with _NP.quiet():
+            s = self._initial_along(_NP, plat, plon)
+            xte, along, bad = self._newton(plat, plon, np.array(s, dtype=np.float64, ndmin=1))
+        if bad.size:
+            i = int(bad[0])
+            raise self._no_foot(i, float(plat[i]), float(plon[i]), bad.size)
+        return xte.reshape(shape), along.reshape(shape)
+
+    def _no_foot(self, i, lat, lon, count):
+        return GeometryError(
+            f"{self!r}: the foot of the perpendicular from position {i} ({lat!r}, {lon!r}) "
+            f"on the extended line was not found in {OFFSET_MAX_ITER} steps ({count} "
+            "position(s) affected); such positions lie too far from a line that runs near "
+            "a pole"
+        )
+
+    def _initial_along(self, xp, plat, plon):
+        """Along-track (metres) of the foot of the perpendicular in the Mercator plane."""
+        fig = self._fig
+        psi_cap = 20.0  # |lat| ~ 89.99999998 degrees: keeps a position at a pole finite
+        x = self._lam_mid + xp.radians(_angdiff(xp, self._lon_mid, plon))
+        y = xp.clip(_psi_rad(xp, fig, xp.radians(xp.clip(plat, -89.9999999, 89.9999999))),
+                    -psi_cap, psi_cap) - self._psi1
+        h = x * self._sina + y * self._cosa  # Mercator (psi-radian) units along the line
+        phi_f = _phi_of_psi(xp, fig, xp.clip(self._psi1 + h * self._cosa, -psi_cap, psi_cap),
+                            iterations=2)  # a start for Newton's method needs no more
+        if abs(self._cosa) >= _STEEP_COS:
+            # metres along the rhumb line: the meridian arc over cos(course)
+            s = fig.A * (_mu(xp, fig, phi_f) - self._mu1) / self._cosa
+        else:
+            # h * (M_f - M_1) / (psi_f - psi_1), by divided differences
+            s = h * (fig.A * _dmu_dphi(xp, fig, phi_f, self._phi1)
+                     / _dpsi_dphi(xp, fig, phi_f, self._phi1))
+        return xp.clip(s, self._s_min, self._s_max)
+
+    def _step(self, xp, phir, azi, d):
+        """Newton step along the line from the foot estimate R (latitude ``phir``, radians),
+        given the geodesic distance ``d`` and azimuth ``azi`` from R to the position; and the
+        cross-track distance (+ right) that goes with it.
+
+        On the sphere of R's Gaussian radius ``r`` the right triangle R-foot-P gives the
+        along-track leg ``r atan(tan(d/r) cos t)`` and the cross-track leg
+        ``r asin(sin(d/r) sin t)``, t the angle at R from the course to P. The line bends
+        (geodesic curvature ``kappa = sin(course) tan(lat) / N``, to the left when positive),
+        so the foot on it moves ``u / (1 + kappa * xte)`` for a shift ``u`` on the tangent."""
+        fig = self._fig
+        theta = xp.radians(azi - self.course)
+        sphi = xp.sin(phir)
+        w2 = 1.0 - fig.e2 * sphi * sphi
+        n_rad = fig.a / xp.sqrt(w2)  # prime vertical radius N
+        r = n_rad * xp.sqrt((1.0 - fig.e2) / w2)  # Gaussian radius sqrt(rho N)
+        sig = d / r
+        u = r * xp.atan(xp.tan(sig) * xp.cos(theta))
+        v = r * xp.asin(xp.sin(sig) * xp.sin(theta))
+        kappa = self._sina * xp.tan(phir) / n_rad
+        den = 1.0 + kappa * v
+        return u / xp.where(den > 0.5, den, 0.5), v
+
+    def _accept(self, xp, step, prev):
+        """The foot has converged when the step is below :data:`OFFSET_TOL_M`, or when the
+        rate of convergence seen over the last two steps puts what remains after this one
+        below a tenth of it."""
+        a = xp.abs(step)
+        return (a < OFFSET_TOL_M) | (a * a < 0.1 * OFFSET_TOL_M * xp.abs(prev))
+
+    def _newton(self, plat, plon, s):
+        n = plat.size
+        xte = np.zeros(n)
+        along = np.zeros(n)
+        prev = np.full(n, np.nan)  # no step yet: no rate of convergence
+        active = np.arange(n)
+        for _ in range(OFFSET_MAX_ITER):
+            if active.size == 0:
+                break
+            sa = s[active]
+            phi, rlon = _direct_lat_lon(_NP, self._fig, self._phi1, self._mu1, self.lon1,
+                                        self._sina, self._cosa, sa, self._psi1)
+            d, azi, _ = _geodesic.inverse_np(np.degrees(phi), _norm_lon(_NP, rlon),
+                                             plat[active], plon[active], self.earth)
+            step, v = self._step(_NP, phi, azi, d)
+            done = self._accept(_NP, step, prev[active])
+            fin = active[done]
+            xte[fin] = v[done]
+            along[fin] = sa[done] + step[done]
+            keep = ~done
+            active = active[keep]
+            prev[active] = step[keep]
+            s[active] = np.clip(sa[keep] + step[keep], self._s_min, self._s_max)
+        return xte + 0.0, along + 0.0, active
