@@ -126,3 +126,40 @@ def test_regression_logbook_path_unopenable(tmp_path):
             Logbook.open(bad)
     code, _out, err = relkit.run_cli(["--db", str(tmp_path), "verify"])
     assert code == 1 and "logbook" in err and "Traceback" not in err
+
+
+def test_regression_csv_not_utf8_route(tmp_path):
+    # A route CSV saved as latin-1 (0xE9 for 'é'): UnicodeDecodeError used to escape.
+    p = tmp_path / "route.csv"
+    p.write_bytes((ROUTE_CSV + "Cap Fr\xe9hel,48.68,-2.32,,,,,,,\nB,49,-3,rhumb,,,,,,\n")
+                  .encode("latin-1"))
+    with pytest.raises(FormatError, match=r"route\.csv.*not UTF-8 text"):
+        read_routes(p)
+
+
+def test_regression_csv_not_utf8_first_block(tmp_path):
+    # the bad byte is decoded with the header (the first block): no line can be named
+    p = tmp_path / "fixes.csv"
+    p.write_bytes(FIX_CSV.encode() + b"2026-05-01T06:09:00Z,50,-1,gnss,,,,\xff\n")
+    with pytest.raises(FormatError, match=r"fixes\.csv: not UTF-8 text"):
+        read_fixes(p)
+
+
+def test_regression_csv_not_utf8_fix_rows(tmp_path):
+    p = tmp_path / "fixes.csv"
+    rows = "".join(f"2026-05-01T06:{m:02d}:00Z,50.0,-1.0,gnss,5,10,,ok\n" for m in range(3))
+    # text is decoded ahead in blocks of 8 KiB: the bad byte lies beyond the first block
+    p.write_bytes(FIX_CSV.encode() + rows.encode() * 200
+                  + b"2026-05-01T06:09:00Z,50,-1,gnss,,,,\xe9\n")
+    with pytest.raises(FormatError, match=r"fixes\.csv: not UTF-8 text after line \d+"):
+        read_fixes(p)
+
+
+def test_regression_gpx_unknown_xml_encoding(tmp_path):
+    # The same as for RTZ, in GPX (LookupError / ValueError escaped the GPX reader).
+    for enc in ("UTF-0.0", "utf-32"):
+        p = tmp_path / "track.gpx"
+        p.write_text(f'<?xml version="1.0" encoding="{enc}"?>\n'
+                     '<gpx xmlns="http://www.topografix.com/GPX/1/1" version="1.1"/>\n')
+        with pytest.raises(FormatError, match=r"track\.gpx"):
+            read_fixes(p)
