@@ -56,7 +56,7 @@ from typing import Any, Iterable, Mapping, Sequence
 
 import numpy as np
 
-from passagelog.errors import InputError
+from passagelog.errors import InputError, PassagelogError
 from passagelog.model import LogEntry, Route
 from passagelog.nav.earth import WGS84, Earth, get_earth
 from passagelog.nav.geodesic import direct, inverse, inverse_np
@@ -124,10 +124,7 @@ class _RoutePlan:
             a, b = wps[k], wps[k + 1]
             try:
                 self.legs.append(_make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing, earth))
-            except InputError as exc:
-                raise InputError(f"route {route.name!r} leg {k + 1} ({a.name} -> {b.name}): "
-                                 f"{exc}") from None
-            except Exception as exc:  # GeometryError: zero-length leg
+            except PassagelogError as exc:  # e.g. GeometryError: a zero-length leg
                 raise type(exc)(f"route {route.name!r} leg {k + 1} ({a.name} -> {b.name}): "
                                 f"{exc}") from None
         self.length = np.array([leg.distance_m for leg in self.legs])
