@@ -2,8 +2,9 @@
 
 Plain logic over the reconciliation engine (:mod:`passagelog.review`), no Textual. To stay
 quick with a logbook of a million fixes, the watch reconciles only the recent part of the
-track (``tail_s``, 24 h by default) — enough for the active leg, XTE, progress over the SMG
-window and the latest passages; the Review view reconciles the whole voyage.
+track in detail: the engine follows the whole track to find the active leg and the
+passages, and works out the per-fix figures only over the last SMG window
+(``detail_from_utc``); the Review view reconciles the whole voyage in detail.
 """
 
 from __future__ import annotations
@@ -21,7 +22,6 @@ DEFAULT_APPROACH_S = 6 * 60.0
 DEFAULT_PASSED_S = 10 * 60.0
 DEFAULT_NO_FIX_S = 20 * 60.0
 DEFAULT_BEHIND_S = 15 * 60.0
-DEFAULT_TAIL_S = 24 * 3600.0
 
 
 @dataclass(frozen=True)
@@ -31,7 +31,6 @@ class WatchSettings:
     passed_s: float = DEFAULT_PASSED_S         # a passage this recent is announced
     no_fix_s: float = DEFAULT_NO_FIX_S         # no fix for longer than this
     behind_s: float = DEFAULT_BEHIND_S         # behind the plan's schedule by more than this
-    tail_s: float = DEFAULT_TAIL_S             # fixes reconciled for the watch
     window_s: float = 3 * 3600.0               # SMG window of the ETA by recent progress
 
 
@@ -70,13 +69,13 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
     if total == 0:
         return WatchState(None, note="No fixes yet: log one in Log (F3), or start "
                                      "'passagelog feed' to log them from the GNSS.")
+    # the whole track decides the active leg (waypoint passages); the per-fix figures are
+    # worked out only over the last SMG window, which keeps a long voyage quick
     t = arrays.time_s
-    lo = int(np.searchsorted(t, t[-1] - settings.tail_s, side="left"))
-    if lo > 0:
-        arrays = arrays.take(np.arange(lo, total))
+    start = float(np.nanmax(t)) - settings.window_s - 60.0
     review = reconcile(plan_revisions or route, arrays, zd_minutes=zd_minutes,
                        entries=entries, window_s=settings.window_s,
-                       departure_utc=departure_utc if lo == 0 else None)
+                       departure_utc=departure_utc, detail_from_utc=start)
     if len(review.fixes) == 0:
         return WatchState(None, fixes_total=total, note="No valid fix to show.")
     status = status_of(review, -1)
@@ -90,7 +89,8 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
     return WatchState(status, fixes_used=len(review.fixes), fixes_total=total,
                       last_passage=passage, xtl_port_m=leg.xtl_port_m,
                       xtl_stbd_m=leg.xtl_stbd_m,
-                      extra={"arrival_radius_m": rroute.waypoints[status.leg].arrival_radius_m})
+                      extra={"arrival_radius_m": rroute.waypoints[status.leg].arrival_radius_m,
+                             "sailing": leg.sailing})
 
 
 def alerts_for(state: WatchState, now_s: float,

@@ -75,8 +75,10 @@ class WatchView(Vertical, can_focus=True):
         s = self.session
         try:
             s.reload_route() if hasattr(s, "reload_route") else None
+            revisions = [(t, r) for t, r in getattr(s, "plan_revisions", [])] or None
             state = compute_watch(s.route, s.fix_arrays(), zd_minutes=s.zd_minutes,
-                                  entries=s.entries(), settings=self.settings)
+                                  entries=s.entries(), settings=self.settings,
+                                  plan_revisions=revisions)
         except Exception as exc:  # noqa: BLE001 - shown in the view; the watch goes on
             state = WatchState(None, note=f"Cannot reconcile the latest fixes: {exc}")
         self.app.call_from_thread(self._show, state)
@@ -107,10 +109,8 @@ class WatchView(Vertical, can_focus=True):
             f"{fmt.position(st.lat, st.lon)}"
             + ("  [b]SUSPECT[/b]" if st.suspect else "")
         )
-        leg = self.session.route.legs[st.leg - 1] if self.session.route and \
-            st.leg - 1 < len(self.session.route.legs) else None
-        sail = "" if leg is None else (" great circle" if leg.sailing == "great-circle"
-                                       else " rhumb line")
+        sailing = state.extra.get("sailing")
+        sail = {"great-circle": " great circle", "rhumb": " rhumb line"}.get(sailing, "")
         side = {"R": "R (starboard)", "L": "L (port)", "": "on the line"}[st.side]
         leg_line.update(Text.assemble(
             ("Leg ", ""), (f"{st.leg}/{st.legs}", "bold"), f"  {st.from_wp} → {st.to_wp}{sail}"
