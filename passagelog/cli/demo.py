@@ -124,5 +124,5 @@ def _print_review(ctx: click.Context, path: Path, voyage: str) -> None:
     inputs = load_inputs(ctx, voyage, None, None, None, None, None, None, ())
     rv = run_review(inputs, 3.0, 60.0, False, None, None)
     for table in ("legs", "passages", "episodes", "noon"):
-        emit_table(rv.iter_rows(table), table, "table", title=f"{voyage}: {table}",
+        emit_table(rv, table, "table", title=f"{voyage}: {table}",
                    provenance=_provenance(inputs))
