@@ -7,6 +7,8 @@ import hashlib
 from datetime import datetime, timedelta, timezone
 
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from passagelog.model import Fix, LogEntry
 from passagelog.store import Logbook
@@ -166,3 +168,45 @@ def test_regression_negative_zero_verifies(book, voyage, route):
     wps = (route.waypoints[0].__class__("Z", -0.0, 0.0),) + route.waypoints[1:]
     book.create_plan(route.with_changes(waypoints=wps), "zero")
     assert book.verify().ok
+
+
+_FIX_EDITS = {
+    # column -> SQL expression giving a different value of the same type
+    "voyage_id": "voyage_id + 1", "time_utc": "replace(time_utc, 'Z', '.5Z')",
+    "time_s": "time_s + 0.5", "lat": "lat * (1 - 1e-15)", "lon": "lon + 1e-12",
+    "method": "'radar'", "hdop": "coalesce(hdop + 0.1, 1.0)",
+    "satellites": "coalesce(satellites + 1, 4)", "fix_mode": "coalesce(fix_mode || 'x', 'D')",
+    "cog": "coalesce(cog / 2, 10.0)", "sog_kn": "coalesce(sog_kn + 1e-9, 0.0)",
+    "heading": "coalesce(heading / 3, 1.0)", "stw_kn": "coalesce(stw_kn * 2 + 1, 0.5)",
+    "remarks": "remarks || ' '", "source": "coalesce(NULL, 'GPS')",
+    "supersedes": "NULL", "reason": "NULL", "recorded_utc": "'2026-03-02T08:00:00Z'",
+    "suspect": "1 - suspect", "implied_speed_kn": "coalesce(implied_speed_kn + 1e-9, 1.0)",
+}
+
+
+@settings(max_examples=40, deadline=None)
+@given(fix_no=st.integers(1, 6), column=st.sampled_from(sorted(_FIX_EDITS)))
+def test_property_any_changed_column_of_any_fix_is_found(tmp_path_factory, fix_no, column):
+    from passagelog.model import Craft, Voyage
+
+    with Logbook.open(tmp_path_factory.mktemp("t") / "log.sqlite") as book:
+        c = book.add_craft(Craft("K", max_speed_kn=12))
+        book.add_voyage(Voyage("A", craft_id=c.craft_id))
+        book.add_voyage(Voyage("B", craft_id=c.craft_id))
+        book.add_fixes("A", [Fix(T0 + timedelta(minutes=i), 50 + i * 0.05, -1.3, sog_kn=5.0,
+                                 hdop=1.2, satellites=7, source="$GPRMC")
+                             for i in range(5)])
+        book.correct_fix("A", 2, Fix(T0 + timedelta(minutes=1), 50.01, -1.3), "misread")
+        _drop_triggers(book, "fix")
+        if column in ("supersedes", "reason"):
+            book._conn.execute("PRAGMA ignore_check_constraints = ON")
+        before = book._q(f"SELECT {column} FROM fix WHERE fix_id = ?", (fix_no,))[0][0]
+        book._conn.execute(f"UPDATE fix SET {column} = {_FIX_EDITS[column]} WHERE fix_id = ?",
+                           (fix_no,))
+        after = book._q(f"SELECT {column} FROM fix WHERE fix_id = ?", (fix_no,))[0][0]
+        report = book.verify()
+        if after == before and type(after) is type(before):
+            assert [f for f in report.findings if f.chain == "fix"
+                    and f.kind != "trigger-missing"] == []
+        else:
+            assert ("edited", "fix", fix_no) in _kinds(report)
