@@ -1,0 +1,218 @@
+#!/usr/bin/env python3
+"""Kill passagelog (SIGKILL) at random moments during a large import and during feed
+logging, then check the logbook: ``PRAGMA integrity_check`` is ok, ``passagelog verify`` is
+ok, each import is wholly there or wholly absent, and the feed lost at most the fix in
+flight.
+
+    python scripts/crash_test.py --kills 20 --lines 200000 --seed 1   # the long form
+    python scripts/crash_test.py --kills 5 --lines 20000              # a quick look
+
+Seeded: the same seed kills at the same offsets into each run. Only 127.0.0.1 is used;
+every process started is killed and reaped before the next starts. Prints one line per
+kill and a JSON summary; exit status 1 when any check failed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import random
+import socket
+import sys
+import tempfile
+import threading
+import time
+from dataclasses import asdict, dataclass, field
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import reliability_common as rc  # noqa: E402
+
+
+@dataclass
+class Result:
+    kind: str
+    kills: int = 0
+    completed_before_kill: int = 0
+    absent_after_kill: int = 0
+    partial: int = 0
+    integrity_failures: int = 0
+    verify_failures: int = 0
+    lost_counts: list = field(default_factory=list)
+    doubled: int = 0
+    problems: list = field(default_factory=list)
+    seconds: float = 0.0
+
+    @property
+    def ok(self) -> bool:
+        return not (self.partial or self.integrity_failures or self.verify_failures
+                    or self.doubled or self.problems)
+
+
+def check_logbook(db: Path, result: Result, what: str) -> None:
+    ic = rc.integrity_check(db)
+    if ic != "ok":
+        result.integrity_failures += 1
+        result.problems.append(f"{what}: integrity_check: {ic}")
+    v = rc.run(db, "verify", "--json")
+    if v.returncode != 0:
+        result.verify_failures += 1
+        result.problems.append(f"{what}: verify exit {v.returncode}: {v.stderr.strip()[:300]}")
+
+
+# ---------------------------------------------------------------------------------------------
+# import
+
+
+def crash_imports(work: Path, kills: int, lines: int, rng: random.Random,
+                  log=print) -> Result:
+    result = Result("import")
+    started = time.monotonic()
+    db = work / "import.sqlite"
+    voyages = [f"imp-{k}" for k in range(kills + 1)]
+    rc.make_logbook(db, voyages, with_plan=False)
+    base = work / "base.nmea"
+    expected = rc.write_nmea_log(base, lines)
+    # calibration: one whole import, timed (also the count a whole import gives)
+    calib = work / "imp-0.nmea"
+    rc.tagged_copy(base, calib, "run 0")
+    t = time.monotonic()
+    done = rc.run(db, "import", str(calib), "--voyage", "imp-0", "-q")
+    full_s = time.monotonic() - t
+    if done.returncode != 0 or rc.count_fixes(db, "imp-0") != expected:
+        result.problems.append(f"calibration import failed: {done.stderr.strip()[:300]}")
+        return result
+    log(f"import of {lines} lines ({expected} fixes) takes {full_s:.1f} s whole")
+    for k in range(1, kills + 1):
+        name = f"imp-{k}"
+        path = work / f"{name}.nmea"
+        rc.tagged_copy(base, path, f"run {k}")
+        delay = rng.uniform(0.05, full_s * 1.1)  # some kills land after the commit
+        proc = rc.start(db, "import", str(path), "--voyage", name, "-q")
+        try:
+            time.sleep(delay)
+            finished_first = proc.poll() is not None
+        finally:
+            _out, err = rc.reap(proc)  # SIGKILL if still running
+        result.kills += 1
+        n = rc.count_fixes(db, name)
+        recorded = path.name in rc.imports_named(db)
+        if n == expected and recorded:
+            state = "whole"
+            result.completed_before_kill += 1
+        elif n == 0 and not recorded:
+            state = "absent"
+            result.absent_after_kill += 1
+        else:
+            state = f"PARTIAL ({n} of {expected} fixes, import record {recorded})"
+            result.partial += 1
+            result.problems.append(f"kill {k}: {state}")
+        if finished_first and proc.returncode not in (0,):
+            result.problems.append(f"kill {k}: import ended by itself with exit "
+                                   f"{proc.returncode}: {err.strip()[:300]}")
+        check_logbook(db, result, f"import kill {k}")
+        log(f"import kill {k:2d} at {delay:5.2f} s: {state}")
+        path.unlink()
+    result.seconds = round(time.monotonic() - started, 1)
+    return result
+
+
+# ---------------------------------------------------------------------------------------------
+# feed
+
+
+def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
+               max_fixes: int = 400) -> Result:
+    """Per kill: start the feed on a fresh UDP port, send fixes one minute of fix time apart
+    (``--every 1``: each is logged), each only after the one before it is in the logbook
+    (stop and wait), SIGKILL at a random moment, then compare what was sent with what was
+    stored. The feed logs an epoch when the next sentence closes it, so the last sentence
+    sent is never a fix yet; the one before it may be the write in flight."""
+    result = Result("feed")
+    started = time.monotonic()
+    db = work / "feed.sqlite"
+    voyages = [f"feed-{k}" for k in range(1, kills + 1)]
+    rc.make_logbook(db, voyages)
+    fix_index = 0  # fix times go on across runs (one voyage per run)
+    for k in range(1, kills + 1):
+        voyage = f"feed-{k}"
+        port = rc.free_udp_port()
+        proc = rc.start(db, "feed", "--udp", f"{rc.LOOPBACK}:{port}", "--voyage", voyage,
+                        "--every", "1", "--course-change", "0", "-q")
+        sent: list[str] = []
+        sender = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
+        kill_at = time.monotonic() + rng.uniform(0.8, 4.0)
+        stop = threading.Event()
+        try:
+            # the process needs a moment to bind: repeat the first sentence until it shows
+            first_t, lat, lon = rc.track_point(fix_index, 60.0)
+            deadline = rc.Deadline(20.0)
+            while deadline and rc.count_fixes(db, voyage) == 0 and proc.poll() is None:
+                for i in (0, 1):
+                    t, lat, lon = rc.track_point(fix_index + i, 60.0)
+                    sender.sendto(rc.rmc(t, lat, lon).encode(), (rc.LOOPBACK, port))
+                time.sleep(0.05)
+            sent = [rc.track_point(fix_index + i, 60.0)[0] for i in (0, 1)]
+            i = 2
+            while time.monotonic() < kill_at and proc.poll() is None and i < max_fixes:
+                # stop and wait: fix i-1 closes (and is logged) when sentence i arrives
+                t, lat, lon = rc.track_point(fix_index + i, 60.0)
+                sender.sendto(rc.rmc(t, lat, lon).encode(), (rc.LOOPBACK, port))
+                sent.append(t)
+                wait = rc.Deadline(5.0)
+                while wait and time.monotonic() < kill_at and rc.count_fixes(db, voyage) < i:
+                    time.sleep(0.002)
+                i += 1
+        finally:
+            stop.set()
+            sender.close()
+            _out, err = rc.reap(proc)
+        result.kills += 1
+        fix_index += len(sent) + 1
+        stored = rc.fix_times(db, voyage)
+        sent_text = [s.strftime("%Y-%m-%dT%H:%M:%SZ") for s in sent]
+        if len(set(stored)) != len(stored):
+            result.doubled += 1
+            result.problems.append(f"feed kill {k}: a fix stored twice")
+        if stored != sent_text[:len(stored)]:
+            result.problems.append(f"feed kill {k}: stored fixes are not the first ones sent "
+                                   f"({stored[:3]}... vs {sent_text[:3]}...)")
+        lost = len(sent) - len(stored)
+        result.lost_counts.append(lost)
+        # the last sentence is an open epoch (never a fix yet); at most one more in flight
+        if lost > 2:
+            result.problems.append(f"feed kill {k}: {lost} of {len(sent)} sentences not "
+                                   f"stored (at most the open epoch and the write in flight)")
+        if proc.returncode not in (-9, 0):
+            result.problems.append(f"feed kill {k}: exit {proc.returncode}: {err[-300:]}")
+        check_logbook(db, result, f"feed kill {k}")
+        log(f"feed kill {k:2d}: sent {len(sent)}, stored {len(stored)} (lost {lost})")
+    result.seconds = round(time.monotonic() - started, 1)
+    return result
+
+
+def main(argv: list[str] | None = None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--kills", type=int, default=20, help="kills of each kind (default 20)")
+    ap.add_argument("--lines", type=int, default=200_000, help="lines of the NMEA import")
+    ap.add_argument("--seed", type=int, default=1)
+    ap.add_argument("--only", choices=["import", "feed"], help="run one kind only")
+    ap.add_argument("--dir", help="work folder (default: a new temporary folder)")
+    args = ap.parse_args(argv)
+    rng = random.Random(args.seed)
+    results = []
+    with tempfile.TemporaryDirectory(prefix="passagelog-crash-") as tmp:
+        work = Path(args.dir) if args.dir else Path(tmp)
+        work.mkdir(parents=True, exist_ok=True)
+        if args.only in (None, "import"):
+            results.append(crash_imports(work, args.kills, args.lines, rng))
+        if args.only in (None, "feed"):
+            results.append(crash_feed(work, args.kills, rng))
+    summary = {"seed": args.seed, "lines": args.lines,
+               "results": [dict(asdict(r), ok=r.ok) for r in results]}
+    print(json.dumps(summary, indent=2))
+    return 0 if all(r.ok for r in results) else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())
