@@ -28,6 +28,7 @@ Rejected lines are counted by reason, with the first few line numbers, in the re
 from __future__ import annotations
 
 import math
+import re
 from collections import deque
 from datetime import date, datetime, timedelta, timezone
 from typing import IO, Iterable, Iterator, Sequence
@@ -36,6 +37,7 @@ import pynmea2
 
 from passagelog.errors import InputError
 from passagelog.formats._common import ReadSummary
+import passagelog.model as _model
 from passagelog.model import Fix
 
 UTC = timezone.utc
@@ -67,6 +69,16 @@ YEAR_PIVOT = 80
 
 _HEX_PAIRS = {f"{a}{b}": int(f"{a}{b}", 16)
               for a in "0123456789ABCDEFabcdef" for b in "0123456789ABCDEFabcdef"}
+
+
+#: One strict pattern for a whole RMC body (ASCII digits only): status A, time, position,
+#: optional speed and course, date, variation, optional mode letter and navigational status.
+_RMC_FAST = re.compile(
+    r"([A-Z0-9]{2})RMC,([01]\d|2[0-3])([0-5]\d)([0-5]\d)(?:\.(\d{1,3})\d*)?,A,"
+    r"(\d\d)([0-5]\d(?:\.\d*)?),([NS]),(\d{3})([0-5]\d(?:\.\d*)?),([EW]),"
+    r"(\d{1,9}(?:\.\d{0,9})?)?,(\d{1,3}(?:\.\d{0,9})?)?,"
+    r"((?:0[1-9]|[12]\d|3[01])(?:0[1-9]|1[0-2])\d\d),"
+    r"[^,*$]*,[^,*$]*(?:,([ADEFMPRS]?)(?:,[^,*$]*)?)?", re.ASCII).fullmatch
 
 
 class _Bad(Exception):
@@ -211,6 +223,55 @@ class _Epoch:
         self.first_line = 0
 
 
+def _fix_factory():
+    """A maker of :class:`Fix` for values this module has already checked.
+
+    ``Fix.__post_init__`` re-validates every field (about 6 us a fix, more than reading the
+    sentence); the reader's own checks are stricter (digits only, hemisphere letters,
+    minutes below 60, courses in [0, 360], at most three digits of satellites), so here the
+    dataclass is filled directly from a valid template, folding the longitude as the model
+    does. Anything outside what the reader guarantees goes through the real constructor,
+    and tests/formats/test_nmea.py checks that both give equal fixes. If the model's layout
+    changes (slots), the real constructor is used throughout.
+    """
+    template = Fix(datetime(2000, 1, 1, tzinfo=UTC), 0.0, 0.0)
+    if not hasattr(template, "__dict__"):
+        return _slow_fix
+    base = dict(template.__dict__)
+    max_sats = getattr(_model, "MAX_SATELLITES", None)
+    new = object.__new__
+    set_attr = object.__setattr__
+    fields = ("time_utc", "lat", "lon", "hdop", "satellites", "fix_mode", "cog", "sog_kn",
+              "heading", "source")
+    if not set(fields) <= set(base):
+        return _slow_fix
+
+    def make(t, lat, lon, hdop, sats, mode, cog, sog, heading, source) -> Fix:
+        if (not -90.0 <= lat <= 90.0 or not -180.0 <= lon <= 180.0
+                or (sats is not None and max_sats is not None and sats > max_sats)
+                or (cog is not None and not 0.0 <= cog < 360.0)
+                or (heading is not None and not 0.0 <= heading < 360.0)):
+            return _slow_fix(t, lat, lon, hdop, sats, mode, cog, sog, heading, source)
+        if lon >= 180.0:
+            lon -= 360.0
+        values = base.copy()
+        values.update(time_utc=t, lat=lat, lon=lon + 0.0, hdop=hdop, satellites=sats,
+                      fix_mode=mode, cog=cog, sog_kn=sog, heading=heading, source=source)
+        fix = new(Fix)
+        set_attr(fix, "__dict__", values)
+        return fix
+
+    return make
+
+
+def _slow_fix(t, lat, lon, hdop, sats, mode, cog, sog, heading, source) -> Fix:
+    return Fix(t, lat, lon, hdop=hdop, satellites=sats, fix_mode=mode, cog=cog, sog_kn=sog,
+               heading=heading, source=source)
+
+
+make_fix = _fix_factory()
+
+
 class NmeaReader:
     """Stream fixes out of NMEA 0183 text, one line at a time, in flat memory.
 
@@ -238,6 +299,8 @@ class NmeaReader:
         self._require_checksum = require_checksum
         self._date = start_date
         self._last_tod: int | None = None
+        #: the fast RMC path (tests turn it off to compare it with the slow one)
+        self._fast = True
 
     # -- per-line helpers (slow paths) --------------------------------------------------
 
@@ -308,163 +371,199 @@ class NmeaReader:
         state = {"kept_ms": None, "recent": set(), "order": deque(), "base_date": None,
                  "base": None, "base_ms": 0}
         no = 0
+        fast = self._fast
+        last_date_text, last_day = None, None
         for raw in self._lines:
             no += 1
             line = raw.rstrip("\r\n")
-            if not line.strip():
-                summary.blank_lines += 1
-                continue
-            # Fast path for the common, clean RMC: no whitespace, '*hh' at the end.
-            if (line[3:7] == "RMC," and line[0] == "$" and line[-3] == "*"
-                    and line.isascii() and " " not in line and "\r" not in line
-                    and "\t" not in line):
+            # The fast path: a clean RMC whose checksum and every field pass one strict
+            # pattern and the range checks below. Anything else (or any doubt) goes the
+            # slow way, which finds and counts the reason.
+            m = None
+            if (fast and line[3:7] == "RMC," and line[:1] == "$" and line[-3:-2] == "*"
+                    and line.isascii()):
                 body = line[1:-3]
-                good = checksum(body) == _HEX_PAIRS.get(line[-2:], -1)
-                fields = body.split(",") if good else self._frame(line, no)
-            else:
-                fields = self._frame(line, no)
-            if fields is None:
-                continue
-            address = fields[0]
-            talker = address[:2]
-            kind = address[2:]
-            if kind not in FIELD_COUNTS:
-                summary.ignored[kind] += 1
-                continue
-            if only and talker not in rank_of:
-                summary.ignored[f"talker {talker} not selected"] += 1
-                continue
-            n = len(fields) - 1
-            if n not in FIELD_COUNTS[kind]:
-                summary.reject(f"wrong field count for {kind}", no)
-                continue
-            try:
-                if kind == "RMC":
-                    status = fields[2]
-                    if status != "A":
-                        summary.reject("no fix: RMC status V" if status == "V"
-                                       else "bad field: RMC status", no)
-                        continue
-                    mode = fields[12] if n >= 12 else None
-                    if mode is not None and mode not in MODE_LETTERS:
-                        raise _Bad("RMC mode")
-                    if mode == "N":
-                        summary.reject("no fix: mode N", no)
-                        continue
-                    tod = _time_ms(fields[1], "RMC")
-                    lat = _lat(fields[3], fields[4], "RMC")
-                    lon = _lon(fields[5], fields[6], "RMC")
-                    sog = _num(fields[7], "RMC speed")
-                    cog = _course(fields[8], "RMC course")
-                    day = _rmc_date(fields[9])
+                if checksum(body) == _HEX_PAIRS.get(line[-2:], -1):
+                    m = _RMC_FAST(body)
+            if m is not None:
+                (talker, hh, mi, ss, frac, lat_d, lat_m, ns, lon_d, lon_m, ew, sog_t, cog_t,
+                 date_t, mode) = m.groups()
+                lat = int(lat_d) + float(lat_m) / 60.0
+                lon = int(lon_d) + float(lon_m) / 60.0
+                cog = float(cog_t) if cog_t else None
+                if date_t == last_date_text:
+                    day = last_day
+                else:
+                    try:
+                        day = date(_year(int(date_t[4:])), int(date_t[2:4]), int(date_t[:2]))
+                    except ValueError:
+                        day = None
+                    last_date_text, last_day = date_t, day
+                if (lat > 90.0 or lon > 180.0 or day is None
+                        or (cog is not None and cog > 360.0) or (only and talker not in rank_of)):
+                    m = None  # the slow path says why
+                else:
+                    if ns == "S":
+                        lat = -lat
+                    if ew == "W":
+                        lon = -lon
+                    if cog == 360.0:
+                        cog = 0.0
+                    sog = float(sog_t) if sog_t else None
+                    tod = ((int(hh) * 60 + int(mi)) * 60 + int(ss)) * 1000 + (
+                        int((frac + "00")[:3]) if frac else 0)
+                    mode = mode or None
+                    kind = "RMC"
+                    hdop = sats = None
                     self._date = day
                     self._last_tod = tod
-                    hdop = sats = None
-                elif kind == "GGA":
-                    quality = fields[6]
-                    if quality == "0":
-                        summary.reject("no fix: GGA quality 0", no)
-                        continue
-                    if len(quality) != 1 or not quality.isdigit():
-                        raise _Bad("GGA quality")
-                    mode = quality
-                    tod = _time_ms(fields[1], "GGA")
-                    lat = _lat(fields[2], fields[3], "GGA")
-                    lon = _lon(fields[4], fields[5], "GGA")
-                    sats_text = fields[7]
-                    if sats_text and (not sats_text.isdigit() or len(sats_text) > 3):
-                        raise _Bad("GGA satellites")
-                    sats = int(sats_text) if sats_text else None
-                    hdop = _num(fields[8], "GGA HDOP")
-                    sog = cog = None
-                    day = self._day_for(tod)
-                elif kind == "GLL":
-                    status = fields[6]
-                    if status != "A":
-                        summary.reject("no fix: GLL status V" if status == "V"
-                                       else "bad field: GLL status", no)
-                        continue
-                    mode = fields[7] if n >= 7 else None
-                    if mode is not None and mode not in MODE_LETTERS:
-                        raise _Bad("GLL mode")
-                    if mode == "N":
-                        summary.reject("no fix: mode N", no)
-                        continue
-                    msg = self._via_pynmea2(fields, no)
-                    if msg is None:
-                        continue
-                    tod = _time_ms(msg.data[4], "GLL")
-                    lat = _lat(msg.lat, msg.lat_dir, "GLL")
-                    lon = _lon(msg.lon, msg.lon_dir, "GLL")
-                    sog = cog = hdop = sats = None
-                    day = self._day_for(tod)
-                elif kind == "ZDA":
-                    msg = self._via_pynmea2(fields, no)
-                    if msg is None:
-                        continue
-                    tod = _time_ms(msg.data[0], "ZDA")
-                    d, mo, y = msg.data[1], msg.data[2], msg.data[3]
-                    if not (d.isdigit() and mo.isdigit() and y.isdigit()
-                            and len(y) in (2, 4)):
-                        raise _Bad("ZDA date")
-                    year = int(y) if len(y) == 4 else _year(int(y))
-                    try:
-                        zday = date(year, int(mo), int(d))
-                    except (ValueError, OverflowError):  # a day of 400 digits overflows
-                        raise _Bad("ZDA date") from None
-                    self._date = zday
-                    self._last_tod = tod
-                    summary.lines_used += 1
-                    if epoch is not None and epoch.tod_ms == tod:
-                        epoch.date = zday
-                        epoch.aux.append(line)
-                        summary.lines_used -= 1  # counted with the epoch
-                    if pending:
-                        self._resolve(pending, zday, tod, out, state)
-                    if out:
-                        yield from out
-                        out.clear()
+            if m is None:
+                if not line.strip():
+                    summary.blank_lines += 1
                     continue
-                else:  # VTG, HDT: merged into the open epoch
-                    msg = self._via_pynmea2(fields, no)
-                    if msg is None:
-                        continue
-                    if kind == "VTG":
-                        if n >= 9 and fields[9] == "N":
+                fields = self._frame(line, no)
+                if fields is None:
+                    continue
+                address = fields[0]
+                talker = address[:2]
+                kind = address[2:]
+                if kind not in FIELD_COUNTS:
+                    summary.ignored[kind] += 1
+                    continue
+                if only and talker not in rank_of:
+                    summary.ignored[f"talker {talker} not selected"] += 1
+                    continue
+                n = len(fields) - 1
+                if n not in FIELD_COUNTS[kind]:
+                    summary.reject(f"wrong field count for {kind}", no)
+                    continue
+                try:
+                    if kind == "RMC":
+                        status = fields[2]
+                        if status != "A":
+                            summary.reject("no fix: RMC status V" if status == "V"
+                                           else "bad field: RMC status", no)
+                            continue
+                        mode = (fields[12] or None) if n >= 12 else None
+                        if mode is not None and mode not in MODE_LETTERS:
+                            raise _Bad("RMC mode")
+                        if mode == "N":
                             summary.reject("no fix: mode N", no)
                             continue
-                        if msg.data[1] not in ("T", ""):
-                            raise _Bad("VTG course reference")
-                        vcog = _course(msg.data[0], "VTG course")
-                        vsog = _num(msg.data[4], "VTG speed")
-                        if epoch is None:
-                            summary.dropped["VTG/HDT with no epoch to merge into"] += 1
-                        elif (epoch.cog is None and vcog is not None) or (
-                                epoch.sog is None and vsog is not None):
-                            if epoch.cog is None:
-                                epoch.cog = vcog
-                            if epoch.sog is None:
-                                epoch.sog = vsog
+                        tod = _time_ms(fields[1], "RMC")
+                        lat = _lat(fields[3], fields[4], "RMC")
+                        lon = _lon(fields[5], fields[6], "RMC")
+                        sog = _num(fields[7], "RMC speed")
+                        cog = _course(fields[8], "RMC course")
+                        day = _rmc_date(fields[9])
+                        self._date = day
+                        self._last_tod = tod
+                        hdop = sats = None
+                    elif kind == "GGA":
+                        quality = fields[6]
+                        if quality == "0":
+                            summary.reject("no fix: GGA quality 0", no)
+                            continue
+                        if len(quality) != 1 or not quality.isdigit():
+                            raise _Bad("GGA quality")
+                        mode = quality
+                        tod = _time_ms(fields[1], "GGA")
+                        lat = _lat(fields[2], fields[3], "GGA")
+                        lon = _lon(fields[4], fields[5], "GGA")
+                        sats_text = fields[7]
+                        if sats_text and (not sats_text.isdigit() or len(sats_text) > 3):
+                            raise _Bad("GGA satellites")
+                        sats = int(sats_text) if sats_text else None
+                        hdop = _num(fields[8], "GGA HDOP")
+                        sog = cog = None
+                        day = self._day_for(tod)
+                    elif kind == "GLL":
+                        status = fields[6]
+                        if status != "A":
+                            summary.reject("no fix: GLL status V" if status == "V"
+                                           else "bad field: GLL status", no)
+                            continue
+                        mode = (fields[7] or None) if n >= 7 else None
+                        if mode is not None and mode not in MODE_LETTERS:
+                            raise _Bad("GLL mode")
+                        if mode == "N":
+                            summary.reject("no fix: mode N", no)
+                            continue
+                        msg = self._via_pynmea2(fields, no)
+                        if msg is None:
+                            continue
+                        tod = _time_ms(msg.data[4], "GLL")
+                        lat = _lat(msg.lat, msg.lat_dir, "GLL")
+                        lon = _lon(msg.lon, msg.lon_dir, "GLL")
+                        sog = cog = hdop = sats = None
+                        day = self._day_for(tod)
+                    elif kind == "ZDA":
+                        msg = self._via_pynmea2(fields, no)
+                        if msg is None:
+                            continue
+                        tod = _time_ms(msg.data[0], "ZDA")
+                        d, mo, y = msg.data[1], msg.data[2], msg.data[3]
+                        if not (d.isdigit() and mo.isdigit() and y.isdigit()
+                                and len(y) in (2, 4)):
+                            raise _Bad("ZDA date")
+                        year = int(y) if len(y) == 4 else _year(int(y))
+                        try:
+                            zday = date(year, int(mo), int(d))
+                        except (ValueError, OverflowError):  # a day of 400 digits overflows
+                            raise _Bad("ZDA date") from None
+                        self._date = zday
+                        self._last_tod = tod
+                        summary.lines_used += 1
+                        if epoch is not None and epoch.tod_ms == tod:
+                            epoch.date = zday
                             epoch.aux.append(line)
+                            summary.lines_used -= 1  # counted with the epoch
+                        if pending:
+                            self._resolve(pending, zday, tod, out, state)
+                        if out:
+                            yield from out
+                            out.clear()
+                        continue
+                    else:  # VTG, HDT: merged into the open epoch
+                        msg = self._via_pynmea2(fields, no)
+                        if msg is None:
+                            continue
+                        if kind == "VTG":
+                            if n >= 9 and fields[9] == "N":
+                                summary.reject("no fix: mode N", no)
+                                continue
+                            if msg.data[1] not in ("T", ""):
+                                raise _Bad("VTG course reference")
+                            vcog = _course(msg.data[0], "VTG course")
+                            vsog = _num(msg.data[4], "VTG speed")
+                            if epoch is None:
+                                summary.dropped["VTG/HDT with no epoch to merge into"] += 1
+                            elif (epoch.cog is None and vcog is not None) or (
+                                    epoch.sog is None and vsog is not None):
+                                if epoch.cog is None:
+                                    epoch.cog = vcog
+                                if epoch.sog is None:
+                                    epoch.sog = vsog
+                                epoch.aux.append(line)
+                            else:
+                                summary.dropped["VTG/HDT already given for the epoch"] += 1
                         else:
-                            summary.dropped["VTG/HDT already given for the epoch"] += 1
-                    else:
-                        if msg.data[1] != "T":
-                            raise _Bad("HDT reference")
-                        heading = _course(msg.data[0], "HDT heading")
-                        if heading is None:
-                            raise _Bad("HDT heading")
-                        if epoch is None:
-                            summary.dropped["VTG/HDT with no epoch to merge into"] += 1
-                        elif epoch.heading is None:
-                            epoch.heading = heading
-                            epoch.aux.append(line)
-                        else:
-                            summary.dropped["VTG/HDT already given for the epoch"] += 1
+                            if msg.data[1] != "T":
+                                raise _Bad("HDT reference")
+                            heading = _course(msg.data[0], "HDT heading")
+                            if heading is None:
+                                raise _Bad("HDT heading")
+                            if epoch is None:
+                                summary.dropped["VTG/HDT with no epoch to merge into"] += 1
+                            elif epoch.heading is None:
+                                epoch.heading = heading
+                                epoch.aux.append(line)
+                            else:
+                                summary.dropped["VTG/HDT already given for the epoch"] += 1
+                        continue
+                except _Bad as bad:
+                    summary.reject(f"bad field: {bad.args[0]}", no)
                     continue
-            except _Bad as bad:
-                summary.reject(f"bad field: {bad.args[0]}", no)
-                continue
 
             # A position sentence of epoch `tod`.
             if epoch is None or epoch.tod_ms != tod:
@@ -574,8 +673,8 @@ class NmeaReader:
         t = state["base"] + timedelta(milliseconds=ms)
         source = ep.lines[0] if used == 1 else "\n".join(ep.lines + ep.aux)
         try:
-            fix = Fix(t, ep.lat, ep.lon, hdop=ep.hdop, satellites=ep.sats, fix_mode=ep.mode,
-                      cog=ep.cog, sog_kn=ep.sog, heading=ep.heading, source=source)
+            fix = make_fix(t, ep.lat, ep.lon, ep.hdop, ep.sats, ep.mode, ep.cog, ep.sog,
+                           ep.heading, source)
         except InputError as exc:  # the sentences were checked; this is a last guard
             summary.reject(f"fix refused: {exc.reason}", ep.first_line, used)
             return

@@ -470,3 +470,77 @@ def test_written_sentences_pass_pynmea2_strict_check():
     assert msgs[0].true_course == 0.0  # 359.999 rounds to 360.00, written as 0.00
     assert msgs[1].gps_qual == 1 and msgs[1].num_sats == "07"
     assert msgs[2].heading == 0.0
+
+
+# -- the fast RMC path against the slow one -------------------------------------------------
+
+def _both_ways(lines):
+    fast_summary, slow_summary = ReadSummary("a"), ReadSummary("a")
+    fast = list(NmeaReader(lines, fast_summary))
+    reader = NmeaReader(lines, slow_summary)
+    reader._fast = False
+    slow = list(reader)
+    return (fast, fast_summary), (slow, slow_summary)
+
+
+field_text = st.text(alphabet="0123456789.-+ ,*NSEWAVDMX", max_size=12)
+RMC_CHOICES = {
+    "time": ["123519", "123519.5", "235959.999", "000000.05", "240000", "12351", "123519."],
+    "date": ["230394", "290223", "290224", "310424", "000000", "2303945"],
+    "status": ["A", "A", "A", "V", "", "a"],
+    "lat": ["4807.038", "9000.000", "9000.001", "0000.0000", "4860.0", "4807.", "4807",
+            "807.038"],
+    "ns": ["N", "S", "S", "", "n"],
+    "lon": ["01131.000", "18000.000", "18000.5", "17959.9999", "1131.000", "00000.0"],
+    "ew": ["E", "W", "W", ""],
+    "sog": ["022.4", "", ".5", "9" * 30, "0", "12."],
+    "cog": ["084.4", "", "360.0", "360.1", "359.99", "0.0"],
+    "mode": [None, "A", "D", "N", "", "Q", "E"],
+    "talker": ["GP", "GN", "II", "G1"],
+}
+
+
+@st.composite
+def rmc_variants(draw):
+    """RMC sentences mostly valid, with edge values, and now and then one field garbled."""
+    kw = {k: draw(st.just(v[0]) | st.sampled_from(v)) for k, v in RMC_CHOICES.items()}
+    if draw(st.integers(0, 3)) == 0:
+        key = draw(st.sampled_from([k for k in RMC_CHOICES if k not in ("mode", "talker")]))
+        kw[key] = draw(field_text)
+    return rmc(**kw)
+
+
+@settings(max_examples=400, deadline=None)
+@given(st.lists(rmc_variants(), max_size=6))
+def test_fast_rmc_path_gives_what_the_slow_path_gives(lines):
+    (fast, fs), (slow, ss) = _both_ways(lines)
+    assert fast == slow
+    assert fs.as_dict() == ss.as_dict()
+
+
+@settings(max_examples=400, deadline=None)
+@given(
+    t=st.datetimes(datetime(1980, 1, 1), datetime(2079, 12, 31), timezones=st.just(UTC)),
+    lat=st.sampled_from([90.0, -90.0, 0.0, -0.0]) | st.floats(-91, 91),
+    lon=st.sampled_from([180.0, -180.0, 0.0, -0.0]) | st.floats(-181, 181),
+    hdop=st.none() | st.floats(0, 100), sats=st.none() | st.integers(0, 1200),
+    mode=st.none() | st.sampled_from(["A", "1", "E"]),
+    cog=st.none() | st.sampled_from([0.0, 359.999, 360.0]) | st.floats(0, 361),
+    sog=st.none() | st.floats(0, 1e9), heading=st.none() | st.floats(0, 361),
+)
+def test_the_checked_fix_maker_equals_the_model_constructor(t, lat, lon, hdop, sats, mode,
+                                                           cog, sog, heading):
+    from passagelog.errors import InputError
+    from passagelog.formats.nmea import _slow_fix, make_fix
+
+    args = (t, lat, lon, hdop, sats, mode, cog, sog, heading, "$src")
+    try:
+        expected = _slow_fix(*args)
+    except InputError:
+        with pytest.raises(InputError):
+            make_fix(*args)
+        return
+    got = make_fix(*args)
+    assert got == expected
+    assert got.__dict__ == expected.__dict__
+    assert str(got.lon) == str(expected.lon) and str(got.lat) == str(expected.lat)  # -0.0
