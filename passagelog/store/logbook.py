@@ -229,7 +229,12 @@ class Logbook:
         path = Path(path)
         if "\x00" in str(path):
             raise StoreError(f"logbook path {str(path)!r} holds a NUL character")
-        if not path.exists():
+        try:
+            exists = path.exists()
+        except OSError as exc:  # a name too long for the file system
+            raise StoreError(f"logbook {str(path)!r} cannot be opened: {exc.strerror}") \
+                from None
+        if not exists:
             if not create:
                 raise NotFoundError(f"logbook {str(path)!r} does not exist")
             try:

@@ -195,9 +195,9 @@ def _cases(world, commands, cases, seed0, codes, db, watch) -> dict[int, int]:
                 draw_args(rng, path, cmd, world["files"], world["root"])]
         stdin = rng.choice(STDINS)
         before = watch.execute("PRAGMA data_version").fetchone()[0]
-        with time_limit(60, argv):
-            code, out, err = relkit.run_cli(argv, stdin=stdin)
         try:
+            with time_limit(60, argv):
+                code, out, err = relkit.run_cli(argv, stdin=stdin)
             relkit.check_cli_result(argv, code, out, err)
             if code != 0:
                 after = watch.execute("PRAGMA data_version").fetchone()[0]

@@ -121,7 +121,8 @@ def test_regression_logbook_path_unopenable(tmp_path):
     from passagelog.store import Logbook
 
     (tmp_path / "afile").write_text("")
-    for bad in (tmp_path, tmp_path / "afile" / "x.sqlite", str(tmp_path / "a\x00b")):
+    for bad in (tmp_path, tmp_path / "afile" / "x.sqlite", str(tmp_path / "a\x00b"),
+                tmp_path / ("9" * 400)):  # ENAMETOOLONG: OSError escaped Path.exists()
         with pytest.raises(StoreError, match="logbook"):
             Logbook.open(bad)
     code, _out, err = relkit.run_cli(["--db", str(tmp_path), "verify"])
