@@ -1,0 +1,211 @@
+#!/usr/bin/env python3
+"""One logbook, three writers and readers at once, for a fixed time:
+
+* ``passagelog feed --udp 127.0.0.1:PORT`` fed by a loopback sender at RATE fixes a second
+  (fix times one minute apart, ``--every 1``: every fix is logged);
+* ``passagelog import`` of NMEA logs, one after another, each into its own voyage;
+* ``passagelog review VOYAGE --table legs --format json`` over the feed's voyage in a loop.
+
+Afterwards: no process printed a lock error or a traceback, every fix sent is stored exactly
+once, each import is whole, ``PRAGMA integrity_check`` and ``passagelog verify`` are ok.
+
+    python scripts/concurrency_test.py --seconds 60 --rate 10     # the long form
+    python scripts/concurrency_test.py --seconds 8                 # a quick look
+
+Only 127.0.0.1 is used; every process is stopped and reaped before the script ends. Prints a
+JSON summary; exit status 1 when any check failed.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import signal
+import socket
+import sys
+import tempfile
+import threading
+import time
+from dataclasses import asdict, dataclass, field
+from pathlib import Path
+
+sys.path.insert(0, str(Path(__file__).resolve().parent))
+import reliability_common as rc  # noqa: E402
+
+LOCK_WORDS = ("locked", "busy", "Traceback")
+
+
+@dataclass
+class Outcome:
+    seconds: float
+    rate: float
+    sent: int = 0
+    stored: int = 0
+    lost: int = 0
+    doubled: int = 0
+    imports: int = 0
+    imports_whole: int = 0
+    import_fixes_each: int = 0
+    reviews: int = 0
+    reviews_ok: int = 0
+    lock_errors: list = field(default_factory=list)
+    problems: list = field(default_factory=list)
+    feed_exit: int | None = None
+
+    @property
+    def ok(self) -> bool:
+        return not (self.problems or self.lock_errors or self.lost or self.doubled)
+
+
+def _watch(text: str, who: str, outcome: Outcome) -> None:
+    for word in LOCK_WORDS:
+        if word in text:
+            outcome.lock_errors.append(f"{who}: {text.strip()[-300:]}")
+            return
+
+
+def run(work: Path, seconds: float, rate: float, import_lines: int, log=print) -> Outcome:
+    out = Outcome(seconds, rate)
+    db = work / "together.sqlite"
+    max_imports = 200
+    rc.make_logbook(db, ["Live"] + [f"imp-{k}" for k in range(1, max_imports + 1)])
+    base = work / "base.nmea"
+    out.import_fixes_each = rc.write_nmea_log(base, import_lines)
+    port = rc.free_udp_port()
+    feed = rc.start(db, "feed", "--udp", f"{rc.LOOPBACK}:{port}", "--voyage", "Live",
+                    "--every", "1", "--course-change", "0", "-q")
+    stop = threading.Event()
+    threads: list[threading.Thread] = []
+    sent_times: list[str] = []
+    try:
+        sender = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
+        # wait for the feed to bind: repeat the first two sentences until fix 0 is stored
+        deadline = rc.Deadline(30.0)
+        while deadline and rc.count_fixes(db, "Live") == 0 and feed.poll() is None:
+            for i in (0, 1):
+                t, lat, lon = rc.track_point(i, 60.0)
+                sender.sendto(rc.rmc(t, lat, lon).encode(), (rc.LOOPBACK, port))
+            time.sleep(0.05)
+        if feed.poll() is not None:
+            out.problems.append("the feed ended before it logged a fix")
+            return out
+        sent_times += [rc.track_point(i, 60.0)[0] for i in (0, 1)]
+
+        def send() -> None:
+            i = 2
+            period = 1.0 / rate
+            next_at = time.monotonic()
+            while not stop.is_set():
+                t, lat, lon = rc.track_point(i, 60.0)
+                sender.sendto(rc.rmc(t, lat, lon).encode(), (rc.LOOPBACK, port))
+                sent_times.append(t)
+                i += 1
+                next_at += period
+                stop.wait(max(0.0, next_at - time.monotonic()))
+
+        def importer() -> None:
+            k = 0
+            while not stop.is_set() and k < max_imports:
+                k += 1
+                path = work / f"imp-{k}.nmea"
+                rc.tagged_copy(base, path, f"run {k}")
+                proc = rc.start(db, "import", str(path), "--voyage", f"imp-{k}", "-q")
+                try:
+                    while proc.poll() is None and not stop.wait(0.05):
+                        pass
+                finally:
+                    _o, err = rc.reap(proc, sig=signal.SIGKILL) if proc.poll() is None \
+                        else proc.communicate()
+                if proc.returncode == -signal.SIGKILL:
+                    break  # still running at the end: not counted
+                out.imports += 1
+                _watch(err, f"import {k}", out)
+                if proc.returncode != 0:
+                    out.problems.append(f"import {k} exit {proc.returncode}: {err[-300:]}")
+                elif rc.count_fixes(db, f"imp-{k}") == out.import_fixes_each:
+                    out.imports_whole += 1
+                path.unlink()
+
+        def reviewer() -> None:
+            while not stop.is_set():
+                proc = rc.start(db, "review", "Live", "--table", "legs", "--format", "json")
+                try:
+                    o, err = proc.communicate(timeout=120)
+                except Exception:  # noqa: BLE001 - reaped below whatever happened
+                    o, err = rc.reap(proc)
+                out.reviews += 1
+                _watch(err, "review", out)
+                if proc.returncode == 0:
+                    try:
+                        json.loads(o)
+                        out.reviews_ok += 1
+                    except ValueError:
+                        out.problems.append(f"review printed no JSON: {o[:200]!r}")
+                else:
+                    out.problems.append(f"review exit {proc.returncode}: {err[-300:]}")
+
+        for target in (send, importer, reviewer):
+            th = threading.Thread(target=target, name=target.__name__, daemon=True)
+            th.start()
+            threads.append(th)
+        stop.wait(seconds)
+    finally:
+        stop.set()
+        for th in threads:
+            th.join(180)
+        try:
+            # one more sentence closes the last epoch; then wait until everything is stored
+            if feed.poll() is None and sent_times:
+                i = len(sent_times)
+                t, lat, lon = rc.track_point(i, 60.0)
+                closer = rc.rmc(t, lat, lon).encode()
+                deadline = rc.Deadline(30.0)
+                while deadline and rc.count_fixes(db, "Live") < len(sent_times):
+                    sender.sendto(closer, (rc.LOOPBACK, port))
+                    time.sleep(0.1)
+            sender.close()
+        finally:
+            _o, err = rc.reap(feed, sig=signal.SIGINT)
+    out.feed_exit = feed.returncode
+    _watch(err, "feed", out)
+    if feed.returncode != 130:
+        out.problems.append(f"feed exit {feed.returncode} (130 expected after Ctrl-C): "
+                            f"{err[-300:]}")
+    stored = rc.fix_times(db, "Live")
+    sent = [s.strftime("%Y-%m-%dT%H:%M:%SZ") for s in sent_times]
+    out.sent, out.stored = len(sent), len(stored)
+    out.doubled = len(stored) - len(set(stored))
+    out.lost = len(set(sent) - set(stored))
+    if set(stored) - set(sent):
+        out.problems.append("stored fixes that were never sent")
+    ic = rc.integrity_check(db)
+    if ic != "ok":
+        out.problems.append(f"integrity_check: {ic}")
+    v = rc.run(db, "verify")
+    if v.returncode != 0:
+        out.problems.append(f"verify exit {v.returncode}: {v.stderr.strip()[-300:]}")
+    if out.imports and out.imports_whole != out.imports:
+        out.problems.append(f"{out.imports - out.imports_whole} imports not whole")
+    log(f"sent {out.sent}, stored {out.stored}, lost {out.lost}, doubled {out.doubled}; "
+        f"imports {out.imports} ({out.imports_whole} whole); reviews {out.reviews} "
+        f"({out.reviews_ok} ok); lock errors {len(out.lock_errors)}")
+    return out
+
+
+def main(argv: list[str] | None = None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--seconds", type=float, default=60.0)
+    ap.add_argument("--rate", type=float, default=10.0, help="fixes per second sent")
+    ap.add_argument("--import-lines", type=int, default=20_000)
+    ap.add_argument("--dir", help="work folder (default: a new temporary folder)")
+    args = ap.parse_args(argv)
+    with tempfile.TemporaryDirectory(prefix="passagelog-together-") as tmp:
+        work = Path(args.dir) if args.dir else Path(tmp)
+        work.mkdir(parents=True, exist_ok=True)
+        outcome = run(work, args.seconds, args.rate, args.import_lines)
+    print(json.dumps(dict(asdict(outcome), ok=outcome.ok), indent=2))
+    return 0 if outcome.ok else 1
+
+
+if __name__ == "__main__":
+    sys.exit(main())
