@@ -142,3 +142,21 @@ def test_fix_csv_round_trip():
     write_fixes(fixes, "fix-csv", out)
     got, _ = read_fixes(io.StringIO(out.getvalue()))
     assert [Fix(**{**g.__dict__, "source": None}) for g in got] == fixes
+
+
+def _doc_block(after: str) -> str:
+    """The first ``` block after the heading ``after`` in docs/formats.md."""
+    from pathlib import Path
+
+    text = (Path(__file__).parents[2] / "docs" / "formats.md").read_text(encoding="utf-8")
+    section = text.split(after, 1)[1]
+    return section.split("```\n", 2)[1]
+
+
+def test_the_documented_examples_read():
+    route = read_route(io.StringIO(_doc_block("## Route CSV")))
+    assert [w.name for w in route.waypoints] == ["Departure buoy", "Mid-channel", "Landfall"]
+    assert route.legs[0].sailing == "great-circle" and route.legs[0].xtl_port_m == nm(0.5)
+    assert route.waypoints[0].extras == (("csv:notes", "departure at HW-1"),)
+    fixes, summary = read_fixes(io.StringIO(_doc_block("## Fix CSV")))
+    assert [f.method for f in fixes] == ["visual", "gnss"] and summary.fixes_kept == 2
