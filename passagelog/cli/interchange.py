@@ -159,6 +159,11 @@ def import_(ctx: click.Context, file: str, fmt: str | None, voyage: str | None,
         wants_routes = found in ROUTE_FORMATS
         if wants_fixes and voyage is None:
             raise click.UsageError(f"{label} holds fixes; name their voyage with --voyage")
+        if voyage is not None and not wants_fixes:
+            raise click.UsageError(f"{label} holds no fixes, so --voyage has nothing to do; "
+                                   "put the plan in force with 'passagelog voyage assign-plan'")
+        if plan_name is not None and not wants_routes:
+            raise click.UsageError(f"{label} holds no route, so --plan has nothing to name")
         sha = _sha256(path)
         size = path.stat().st_size
         with Logbook.open(db_path_from(ctx)) as book:

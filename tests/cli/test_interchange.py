@@ -97,6 +97,17 @@ def test_fixes_need_a_voyage_and_the_voyage_must_exist(db, tmp_path):
         assert book.imports() == []
 
 
+def test_options_that_do_not_apply_are_usage_errors(db, tmp_path):
+    import click
+
+    r = run(db, "import", str(DATA / "route_1_0.rtz"), "--voyage", "V1")
+    assert isinstance(r.exception, click.UsageError) and "assign-plan" in str(r.exception)
+    r = run(db, "import", str(_nmea(tmp_path)), "--voyage", "V1", "--plan", "X")
+    assert isinstance(r.exception, click.UsageError) and "--plan" in str(r.exception)
+    with Logbook.open(db) as book:
+        assert book.imports() == [] and book.list_plans() == []
+
+
 def test_nothing_readable_is_an_error_and_nothing_is_recorded(db, tmp_path):
     path = tmp_path / "v.nmea"
     path.write_text(rmc(status="V") * 3, encoding="ascii")
