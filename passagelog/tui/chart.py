@@ -119,13 +119,18 @@ class Chart(Widget):
     def __init__(self, *args, **kwargs) -> None:
         super().__init__(*args, **kwargs)
         self.painter = None
+        self._cache: tuple | None = None
 
     def set_painter(self, painter) -> None:
         self.painter = painter
+        self._cache = None
         self.version += 1
         self.refresh()
 
     def render(self) -> Text:
         if self.painter is None:
             return Text("Nothing to plot yet.", style="dim")
-        return self.painter(self.size.width, self.size.height)
+        key = (self.size.width, self.size.height)
+        if self._cache is None or self._cache[0] != key:
+            self._cache = (key, self.painter(*key))
+        return self._cache[1]

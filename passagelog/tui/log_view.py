@@ -27,8 +27,8 @@ SHOWN_FIXES = 200
 SHOWN_ENTRIES = 200
 
 FIX_FIELDS = (
-    ("time", "Time", "empty = now (UTC); or 2026-05-02T11:50Z, ... ZD+1"),
-    ("pos", "Position", "47°36.512'N 122°20.107'W"),
+    ("time", "Time", "now (UTC) if empty"),
+    ("pos", "Position", "e.g. 47 36.512N 122 20.107W"),
     ("hdop", "HDOP", "optional"),
     ("cog", "COG °T", "optional"),
     ("sog", "SOG kn", "optional"),
@@ -109,6 +109,8 @@ class LogView(Vertical):
     def reload(self) -> None:
         s = self.session
         if s.voyage is None:
+            self.app.call_from_thread(self.notify, "No voyage in this logbook yet: nothing "
+                                      "to log to. See 'passagelog --help'.", severity="warning")
             return
         try:
             fixes = s.fix_history()[-SHOWN_FIXES:]

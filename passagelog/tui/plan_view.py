@@ -31,7 +31,7 @@ COLUMNS = (
 FIELDS = (
     # id, label, placeholder
     ("name", "Name", "WP name"),
-    ("pos", "Position", "47°36.5'N 122°20.1'W"),
+    ("pos", "Position", "e.g. 47 36.5N 122 20.1W"),
     ("speed", "Speed kn", ""),
     ("xtl_port", "XTL port NM", ""),
     ("xtl_stbd", "XTL stbd NM", ""),
@@ -102,6 +102,7 @@ class PlanView(Vertical):
         self.history.clear()
         self.dirty = False
         self.refresh_table()
+        self.query_one("#plan-editor").display = bool(self.rows)
         self.fill_editor()
 
     def refresh_table(self, keep_row: int | None = None) -> None:

@@ -94,6 +94,40 @@ def cell(value, how: str) -> str:
     return str(value)
 
 
+#: points kept per series for the plots (a terminal chart has a few tens of thousands of dots)
+PLOT_POINTS = 20_000
+
+
+def _thin(*columns: np.ndarray) -> list[np.ndarray]:
+    """Every k-th point so that at most PLOT_POINTS remain (the last one kept)."""
+    n = len(columns[0])
+    if n <= PLOT_POINTS:
+        return [np.asarray(c) for c in columns]
+    idx = np.unique(np.concatenate([np.arange(0, n, n // PLOT_POINTS + 1), [n - 1]]))
+    return [np.asarray(c)[idx] for c in columns]
+
+
+def _envelope(t: np.ndarray, *columns: np.ndarray) -> list[np.ndarray]:
+    """Min and max of each column over PLOT_POINTS/2 time bins: the plot keeps every spike."""
+    n = len(t)
+    if n <= PLOT_POINTS:
+        return [np.asarray(t)] + [np.asarray(c) for c in columns]
+    bins = PLOT_POINTS // 2
+    edges = np.linspace(0, n, bins + 1).astype(np.int64)
+    starts = edges[:-1]
+    tt = np.repeat(np.asarray(t)[starts], 2)
+    out = [tt]
+    for c in columns:
+        c = np.asarray(c, dtype=float)
+        filled = np.where(np.isfinite(c), c, np.nan)
+        lo = np.fmin.reduceat(np.where(np.isnan(filled), np.inf, filled), starts)
+        hi = np.fmax.reduceat(np.where(np.isnan(filled), -np.inf, filled), starts)
+        lo[~np.isfinite(lo)] = np.nan
+        hi[~np.isfinite(hi)] = np.nan
+        out.append(np.column_stack([lo, hi]).ravel())
+    return out
+
+
 def _n(count: int, one: str, many: str | None = None) -> str:
     return f"{count} {one if count == 1 else (many or one + 's')}"
 
@@ -118,7 +152,7 @@ def track_painter(review):
     ref = float(plon[0])
     unwrap = lambda lon: (np.asarray(lon) - ref + 180.0) % 360.0 - 180.0 + ref  # noqa: E731
     plon = unwrap(plon)
-    flat, flon = np.asarray(fr.lat), unwrap(fr.lon)
+    flat, flon = _thin(np.asarray(fr.lat), unwrap(fr.lon))
     wlat = np.array([w.lat for w in route.waypoints])
     wlon = unwrap(np.array([w.lon for w in route.waypoints]))
     allx = np.concatenate([plon, flon])
@@ -143,7 +177,7 @@ def track_painter(review):
         )
         legend = Text.assemble(("⠿ plan", "dim"), "   ", ("⠿ track", "bold"), "   ",
                                ("⠿ waypoints", "bold reverse"),
-                               f"   {len(fr)} fixes, {len(route.waypoints)} waypoints\n")
+                               f"   {len(fr.time_s)} fixes, {len(route.waypoints)} waypoints\n")
         return legend + body
 
     return paint
@@ -163,6 +197,8 @@ def xte_painter(review):
                 port[sel] = -leg.xtl_port_m / NM_M
             if leg.xtl_stbd_m is not None:
                 stbd[sel] = leg.xtl_stbd_m / NM_M
+
+    t, xte, port, stbd = _envelope(t, xte, port, stbd)
 
     def paint(width: int, height: int) -> Text:
         if t.size == 0:
@@ -258,12 +294,13 @@ class ReviewView(Vertical):
             self.app.call_from_thread(self._failed, str(exc))
             return
         rows = {key: list(review.iter_rows(key)) for key in TABLES}
-        self.app.call_from_thread(self._show, review, rows)
+        painters = (track_painter(review), xte_painter(review)) if len(review.fixes) else None
+        self.app.call_from_thread(self._show, review, rows, painters)
 
     def _failed(self, message: str) -> None:
         self.query_one("#review-head", Static).update(f"Cannot review: {message}")
 
-    def _show(self, review, rows: dict) -> None:
+    def _show(self, review, rows: dict, painters=None) -> None:
         self.review = review
         self.computed += 1
         fr = review.fixes
@@ -284,6 +321,6 @@ class ReviewView(Vertical):
             table.clear()
             for row in rows[key]:
                 table.add_row(*(cell(row.get(col), how) for _h, col, how in columns))
-        if len(fr):
-            self.query_one("#review-track-chart", Chart).set_painter(track_painter(review))
-            self.query_one("#review-xte-chart", Chart).set_painter(xte_painter(review))
+        if painters is not None:
+            self.query_one("#review-track-chart", Chart).set_painter(painters[0])
+            self.query_one("#review-xte-chart", Chart).set_painter(painters[1])

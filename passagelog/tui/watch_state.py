@@ -9,8 +9,9 @@ passages, and works out the per-fix figures only over the last SMG window
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field
-from datetime import datetime
+from datetime import datetime, timezone
 
 import numpy as np
 
@@ -32,6 +33,8 @@ class WatchSettings:
     no_fix_s: float = DEFAULT_NO_FIX_S         # no fix for longer than this
     behind_s: float = DEFAULT_BEHIND_S         # behind the plan's schedule by more than this
     window_s: float = 3 * 3600.0               # SMG window of the ETA by recent progress
+    exact_max_fixes: int = 100_000             # above this, reconcile only the last tail_s
+    tail_s: float = 6 * 3600.0                 # twice the SMG window
 
 
 @dataclass(frozen=True)
@@ -69,28 +72,112 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
     if total == 0:
         return WatchState(None, note="No fixes yet: log one in Log (F3), or start "
                                      "'passagelog feed' to log them from the GNSS.")
-    # the whole track decides the active leg (waypoint passages); the per-fix figures are
-    # worked out only over the last SMG window, which keeps a long voyage quick
     t = arrays.time_s
-    start = float(np.nanmax(t)) - settings.window_s - 60.0
-    review = reconcile(plan_revisions or route, arrays, zd_minutes=zd_minutes,
-                       entries=entries, window_s=settings.window_s,
-                       departure_utc=departure_utc, detail_from_utc=start)
+    last_s = float(np.nanmax(t))
+    revisions = list(plan_revisions) if plan_revisions else [(None, route)]
+    tail_start = last_s - settings.tail_s
+    in_force = [r for r in revisions if r[0] is None or _secs(r[0]) <= tail_start]
+    later = [r for r in revisions if r[0] is not None and _secs(r[0]) > tail_start]
+    k0 = 0
+    if total > settings.exact_max_fixes and not later:
+        # A long voyage: reconcile only the last ``tail_s`` of fixes, against the plan from
+        # the leg the first of them is on (the engine then finds the passages from there).
+        # Exact for any track that does not come back over an earlier leg of the plan.
+        sel = np.flatnonzero(t >= tail_start)
+        tail = arrays.take(sel)
+        plan = in_force[-1][1]
+        k0 = _leg_at(plan, float(tail.lat[0]), float(tail.lon[0]))
+        schedule = _scheduled_times(plan, _departure_s(arrays, entries))
+        sub = plan.with_changes(waypoints=plan.waypoints[k0:], legs=plan.legs[k0:],
+                                schedule=())
+        review = reconcile(sub, tail, zd_minutes=zd_minutes, entries=entries,
+                           window_s=settings.window_s,
+                           schedule=None if schedule is None else schedule[k0:],
+                           departure_utc=float(tail.time_s[0]))
+    else:
+        # The whole track decides the active leg (waypoint passages); the per-fix figures
+        # are worked out only over the last SMG window, which keeps it quick.
+        review = reconcile(revisions if plan_revisions else route, arrays,
+                           zd_minutes=zd_minutes, entries=entries,
+                           window_s=settings.window_s, departure_utc=departure_utc,
+                           detail_from_utc=last_s - settings.window_s - 60.0)
     if len(review.fixes) == 0:
         return WatchState(None, fixes_total=total, note="No valid fix to show.")
     status = status_of(review, -1)
+    if k0 and status.revision == 0:
+        from dataclasses import replace
+
+        status = replace(status, leg=status.leg + k0, legs=status.legs + k0)
     rroute = review.routes[status.revision]
-    leg = rroute.legs[status.leg - 1]
+    shift = k0 if status.revision == 0 else 0
+    leg = rroute.legs[status.leg - 1 - shift]
     passage = None
     for p in reversed(review.passages):
         if p.revision == status.revision:
-            passage = p
+            from dataclasses import replace
+
+            passage = replace(p, waypoint=p.waypoint + shift) if shift else p
             break
     return WatchState(status, fixes_used=len(review.fixes), fixes_total=total,
                       last_passage=passage, xtl_port_m=leg.xtl_port_m,
                       xtl_stbd_m=leg.xtl_stbd_m,
-                      extra={"arrival_radius_m": rroute.waypoints[status.leg].arrival_radius_m,
-                             "sailing": leg.sailing})
+                      extra={"arrival_radius_m":
+                             rroute.waypoints[status.leg - shift].arrival_radius_m,
+                             "sailing": leg.sailing, "tail_from_leg": k0 + 1 if k0 else None})
+
+
+def _secs(t) -> float:
+    return t.timestamp() if isinstance(t, datetime) else float(t)
+
+
+def _leg_at(route, lat: float, lon: float) -> int:
+    """Index of the leg a position is on: the leg whose line passes nearest to it among
+    those it is alongside (along-track within the leg), else the leg ending at the nearest
+    waypoint. Offsets from :mod:`passagelog.nav.legs`."""
+    from passagelog.nav.geodesic import inverse
+    from passagelog.nav.legs import make_leg
+
+    best, best_xte = None, math.inf
+    for k, plan in enumerate(route.legs):
+        a, b = route.waypoints[k], route.waypoints[k + 1]
+        leg = make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing)
+        xte, along = leg.offset(lat, lon)
+        if -NM_M <= along <= leg.distance_m + NM_M and abs(xte) < best_xte:
+            best, best_xte = k, abs(xte)
+    if best is not None:
+        return best
+    dists = [inverse(lat, lon, w.lat, w.lon)[0] for w in route.waypoints[1:]]
+    return int(np.argmin(dists))
+
+
+def _departure_s(arrays, entries) -> float:
+    times = [e.time_utc.timestamp() for e in entries if e.kind == "departure"]
+    return min(times) if times else float(arrays.time_s[0])
+
+
+def _scheduled_times(route, departure_s: float) -> list | None:
+    """Planned time at each waypoint: the route's own schedule, else the departure plus the
+    planned leg times (None when a leg has no planned speed)."""
+    if route.schedule:
+        out: list = [None] * len(route.waypoints)
+        for item in route.schedule:
+            t = item.etd_utc if (item.waypoint_index == 0 and item.etd_utc) else (
+                item.eta_utc or item.etd_utc)
+            out[item.waypoint_index] = t
+        return out
+    from passagelog.nav.legs import make_leg
+    from passagelog.nav.units import travel_seconds
+
+    t = departure_s
+    out = [datetime.fromtimestamp(t, timezone.utc)]
+    for k, plan in enumerate(route.legs):
+        if not plan.speed_kn:
+            return None
+        a, b = route.waypoints[k], route.waypoints[k + 1]
+        t += travel_seconds(make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing).distance_m,
+                            plan.speed_kn)
+        out.append(datetime.fromtimestamp(t, timezone.utc))
+    return out
 
 
 def alerts_for(state: WatchState, now_s: float,

@@ -25,6 +25,10 @@ from passagelog.tui.watch_state import WatchSettings, WatchState, alerts_for, co
 from passagelog.tui.xte_bar import XteBar
 
 
+NO_VOYAGE = ("No voyage in this logbook yet. Make one with the command line (see "
+             "'passagelog --help'), or open the demo: 'passagelog demo'.")
+
+
 def _t(ts: float | None) -> datetime | None:
     return None if ts is None else datetime.fromtimestamp(ts, timezone.utc)
 
@@ -73,6 +77,9 @@ class WatchView(Vertical, can_focus=True):
     @work(thread=True, exclusive=True, group="watch")
     def recompute(self) -> None:
         s = self.session
+        if s.voyage is None:
+            self.app.call_from_thread(self._show, WatchState(None, note=NO_VOYAGE))
+            return
         try:
             s.reload_route() if hasattr(s, "reload_route") else None
             revisions = [(t, r) for t, r in getattr(s, "plan_revisions", [])] or None

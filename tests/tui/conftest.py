@@ -50,3 +50,8 @@ def session(logbook_path):
     from passagelog.tui.session import Session
 
     return Session(logbook_path, clock=fixed_clock)
+
+
+@pytest.fixture
+def sample_plan() -> Route:
+    return sample_route()

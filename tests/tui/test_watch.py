@@ -85,3 +85,42 @@ def test_xte_bar_marks_the_side_and_the_limits():
     left = bar_text(-926.0, 1852.0, 1852.0, 41).plain
     assert left.index("◆") < centre.index("◆") < right.index("◆")
     assert bar_text(None, None, None, 30).plain.count("◆") == 0
+
+
+def test_the_quick_tail_watch_equals_the_whole_track_watch(sample_plan):
+    """Above ``exact_max_fixes`` the watch reconciles only the last hours against the plan
+    from the leg it finds the craft on; it must give the same figures as the engine over
+    the whole track (the engine's own watch, exact by construction)."""
+    from dataclasses import asdict
+
+    from passagelog.tui.watch_state import WatchSettings, compute_watch
+
+    route = sample_plan
+    fixes = []
+    t0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
+    # 12 kn along legs 1 and 2 with a slow weave of up to 0.6 NM, a fix every 10 minutes
+    import math
+
+    step = 2 * NM
+    along, k, t = 0.0, 1, t0
+    while k <= 2:
+        a, b = route.waypoints[k - 1], route.waypoints[k]
+        length = make_leg(a.lat, a.lon, b.lat, b.lon, "great-circle").distance_m
+        if along > length:
+            along -= length
+            k += 1
+            continue
+        lat, lon = point_off_leg(route, k, along, 0.6 * NM * math.sin(len(fixes) / 9.0))
+        fixes.append(Fix(t, lat, lon, sog_kn=12.0))
+        along += step
+        t += timedelta(minutes=10)
+    exact = compute_watch(route, fixes, settings=WatchSettings(exact_max_fixes=10**9))
+    quick = compute_watch(route, fixes, settings=WatchSettings(exact_max_fixes=10,
+                                                               tail_s=6 * 3600.0))
+    assert quick.extra["tail_from_leg"] == 2  # it did take the quick path, from leg 2
+    e, q = asdict(exact.status), asdict(quick.status)
+    for key in e:
+        if isinstance(e[key], float):
+            assert q[key] == pytest.approx(e[key], rel=1e-9, abs=1e-6), key
+        else:
+            assert q[key] == e[key], key

@@ -1,0 +1,174 @@
+"""Open a logbook of 1,000,000 fixes in the terminal UI and show Watch and Review.
+
+Measured in one run on one machine, against a baseline of the same run: the time to open
+the logbook and just load its fix arrays (``Logbook.open`` + ``fix_arrays``), the least any
+view showing the whole voyage must do. Reported, per view, from the key press to the view
+showing its figures (Watch: the latest fix against the plan; Review: every table and plot
+filled), in seconds and as a multiple of the baseline; also the time to the first frame of
+the app and the longest the UI went without answering (an event-loop probe every 10 ms), so
+a view that freezes the UI shows as such. Targets (issue): each view <= 1 s on 2 cores.
+
+    python benchmarks/bench_tui.py [--fixes N] [--keep PATH]
+
+The logbook is built once in a temp directory (or kept at ``--keep`` and reused); building
+it is not timed. No test depends on these figures.
+"""
+
+from __future__ import annotations
+
+import argparse
+import asyncio
+import sys
+import tempfile
+import time
+from datetime import datetime, timezone
+from pathlib import Path
+
+import numpy as np
+
+ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT))
+
+from passagelog.model import Craft, Fix, LegPlan, Route, Voyage, Waypoint  # noqa: E402
+from passagelog.nav.geodesic import direct, direct_np  # noqa: E402
+from passagelog.nav.legs import make_leg  # noqa: E402
+
+T0 = datetime(2026, 3, 1, tzinfo=timezone.utc).timestamp()
+DAYS = 30
+
+
+def build_route(n_wp: int = 100) -> Route:
+    """A 100-waypoint ocean route of great-circle legs of about 100 NM."""
+    rng = np.random.default_rng(7)
+    lat, lon = 30.0, 140.0
+    wps = [Waypoint("WP001", lat, lon, arrival_radius_m=926.0)]
+    for i in range(1, n_wp):
+        lat, lon, _ = direct(lat, lon, 90.0 + rng.uniform(-35, 35), rng.uniform(150e3, 220e3))
+        wps.append(Waypoint(f"WP{i + 1:03d}", lat, lon, arrival_radius_m=926.0))
+    legs = [LegPlan("great-circle", 14.0, 1852.0, 1852.0) for _ in range(n_wp - 1)]
+    return Route("bench", tuple(wps), tuple(legs))
+
+
+def build_logbook(path: Path, n: int) -> None:
+    from passagelog.store import Logbook
+
+    route = build_route()
+    wps = route.waypoints
+    legs = [make_leg(wps[k].lat, wps[k].lon, wps[k + 1].lat, wps[k + 1].lon, "great-circle")
+            for k in range(len(wps) - 1)]
+    cum = np.concatenate([[0.0], np.cumsum([lg.distance_m for lg in legs])])
+    t = T0 + np.linspace(0.0, DAYS * 86400.0, n)
+    s = np.linspace(0.0, cum[-1] * 0.9, n)  # still under way at the end
+    k = np.minimum(np.searchsorted(cum, s, side="right") - 1, len(legs) - 1)
+    lat, lon = np.empty(n), np.empty(n)
+    for j, lg in enumerate(legs):
+        sel = np.flatnonzero(k == j)
+        if sel.size:
+            lat[sel], lon[sel] = lg.points_at_np(s[sel] - cum[j])
+    off = 900.0 * np.sin(2 * np.pi * t / 86400.0 * 0.7)
+    lat, lon, _ = direct_np(lat, lon, np.zeros(n), off)
+    book = Logbook.open(path)
+    craft = book.add_craft(Craft("Bench", max_speed_kn=40.0))
+    plan_id, _ = book.create_plan(route, "benchmark plan")
+    voyage = book.add_voyage(Voyage("Bench voyage", craft_id=craft.craft_id, plan_id=plan_id,
+                                    departure_utc=datetime.fromtimestamp(T0, timezone.utc)))
+
+    def fixes():
+        for i in range(n):
+            yield Fix(datetime.fromtimestamp(float(t[i]), timezone.utc), float(lat[i]),
+                      float(lon[i]), sog_kn=14.0)
+
+    book.add_fixes(voyage.voyage_id, fixes())
+    book.close()
+
+
+def baseline(path: Path) -> float:
+    from passagelog.store import Logbook
+
+    t0 = time.perf_counter()
+    book = Logbook.open(path)
+    arrays = book.fix_arrays("Bench voyage")
+    elapsed = time.perf_counter() - t0
+    book.close()
+    assert len(arrays) > 0
+    return elapsed
+
+
+async def run_app(path: Path) -> dict:
+    from passagelog.tui.app import PassagelogApp
+    from passagelog.tui.session import Session
+
+    out: dict = {}
+    t_start = time.perf_counter()
+    app = PassagelogApp(session=Session(path), watch_poll_s=0.5)
+    longest = [0.0]
+
+    async def probe() -> None:
+        last = time.perf_counter()
+        while True:
+            await asyncio.sleep(0.01)
+            now = time.perf_counter()
+            longest[0] = max(longest[0], now - last - 0.01)
+            last = now
+
+    async with app.run_test(size=(100, 30)) as pilot:
+        task = asyncio.create_task(probe())
+        await pilot.pause()
+        out["first_frame_s"] = time.perf_counter() - t_start
+        watch = app.query_one("#watch-view")
+        t0 = time.perf_counter()
+        await pilot.press("f4")
+        while watch.state is None or watch.state.status is None:
+            await asyncio.sleep(0.005)
+        out["watch_s"] = time.perf_counter() - t0
+        out["watch_from_start_s"] = time.perf_counter() - t_start
+        review = app.query_one("#review-view")
+        t0 = time.perf_counter()
+        await pilot.press("f5")
+        while not review.computed:
+            await asyncio.sleep(0.005)
+        await pilot.pause()
+        out["review_s"] = time.perf_counter() - t0
+        task.cancel()
+        out["longest_stall_s"] = longest[0]
+        out["fixes"] = watch.state.fixes_total
+    return out
+
+
+def main(argv=None) -> int:
+    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+    ap.add_argument("--fixes", type=int, default=1_000_000)
+    ap.add_argument("--keep", type=Path, help="build (or reuse) the logbook at this path")
+    args = ap.parse_args(argv)
+    tmp = None
+    if args.keep:
+        path = args.keep
+    else:
+        tmp = tempfile.TemporaryDirectory()
+        path = Path(tmp.name) / "bench.sqlite"
+    if not path.exists():
+        t0 = time.perf_counter()
+        build_logbook(path, args.fixes)
+        print(f"built a logbook of {args.fixes:,} fixes in {time.perf_counter() - t0:.1f} s "
+              "(not timed below)", file=sys.stderr)
+    base = min(baseline(path) for _ in range(2))
+    r = asyncio.run(run_app(path))
+    print(f"logbook: {r['fixes']:,} fixes, 100-waypoint plan")
+    print(f"baseline: open + fix_arrays         {base:6.2f} s")
+    print(f"app: first frame                   {r['first_frame_s']:6.2f} s")
+    for key, label in (("watch_s", "Watch shown after F4"), ("review_s",
+                                                          "Review filled after F5")):
+        v = r[key]
+        verdict = "met" if v <= 1.0 else "NOT met"
+        print(f"{label:34s} {v:6.2f} s  = {v / base:5.1f}x baseline  (target <= 1 s: "
+              f"{verdict})")
+    print(f"Watch ready from app start          {r['watch_from_start_s']:6.2f} s "
+          "(the watch starts working at mount, before F4)")
+    print(f"longest UI stall (10 ms probe)      {r['longest_stall_s']:6.2f} s")
+    if tmp is not None:
+        tmp.cleanup()
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())
