@@ -454,7 +454,7 @@ def _build_fix(base, pos_text_, time_text, zone_text, method, sog, cog, heading,
                         base.satellites if base else None),
         fix_mode=base.fix_mode if base else None,
         remarks=pick(remarks, base.remarks if base else ""),
-        source=base.source if base else None,
+        source=None,  # a correction typed in does not come from the original's raw text
     )
 
 
