@@ -58,24 +58,35 @@ class PassagelogApp(App):
                 yield PlanView(self.session, id="plan-view")
             for key, title, fkey in VIEWS[1:]:
                 with TabPane(f"{fkey.upper()} {title}", id=key):
-                    yield from self._view_widget(key)
+                    if key == "watch":  # the watch follows the logbook from the start
+                        yield self._view_class(key)(self.session, id="watch-view")
         yield Footer()
 
-    def _view_widget(self, key: str):
-        """The widget of a view (imported lazily; views not built yet show a note)."""
-        from textual.widgets import Static
+    @staticmethod
+    def _view_class(key: str):
+        """The widget class of a view (imported when first needed)."""
+        if key == "log":
+            from passagelog.tui.log_view import LogView as View
+        elif key == "watch":
+            from passagelog.tui.watch_view import WatchView as View
+        else:
+            from passagelog.tui.review_view import ReviewView as View
+        return View
 
-        try:
-            if key == "log":
-                from passagelog.tui.log_view import LogView as View
-            elif key == "watch":
-                from passagelog.tui.watch_view import WatchView as View
-            else:
-                from passagelog.tui.review_view import ReviewView as View
-        except ImportError:
-            yield Static(f"The {key} view is not available in this build.")
-            return
-        yield View(self.session, id=f"{key}-view")
+    async def ensure_view(self, key: str):
+        """The view's widget, mounted the first time it is needed (Log and Review read
+        the logbook when first shown, so a big logbook costs nothing until then)."""
+        found = self.query(f"#{key}-view")
+        if found:
+            return found.first()
+        pane = self.query_one("#views", TabbedContent).get_pane(key)
+        widget = self._view_class(key)(self.session, id=f"{key}-view")
+        await pane.mount(widget)
+        return widget
+
+    async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
+        if event.tabbed_content.id == "views" and event.pane.id in ("log", "review"):
+            await self.ensure_view(event.pane.id)
 
     def on_mount(self) -> None:
         voyage = self.session.voyage
@@ -90,9 +101,10 @@ class PassagelogApp(App):
         if not isinstance(self.screen, HelpScreen):
             self.push_screen(HelpScreen())
 
-    def action_view(self, key: str) -> None:
+    async def action_view(self, key: str) -> None:
         tabs = self.query_one("#views", TabbedContent)
         tabs.active = key
+        await self.ensure_view(key)
         pane = tabs.get_pane(key)
         focusable = [w for w in pane.query("*") if w.focusable]
         if focusable:
@@ -101,10 +113,10 @@ class PassagelogApp(App):
     def action_toggle_dark(self) -> None:
         self.theme = "textual-light" if self.theme == "textual-dark" else "textual-dark"
 
-    def _view_action(self, view: str, action: str) -> Callable[[], None]:
-        def run() -> None:
-            self.action_view(view)
-            widget = self.query_one(f"#{view}-view")
+    def _view_action(self, view: str, action: str):
+        async def run() -> None:
+            await self.action_view(view)
+            widget = await self.ensure_view(view)
             getattr(widget, f"action_{action}")()
         return run
 
@@ -136,9 +148,5 @@ class PassagelogApp(App):
         """Palette entries of the Log, Watch and Review views (as those views declare them)."""
         out: dict[str, tuple[tuple[str, str, str], ...]] = {}
         for key, _title, _f in VIEWS[1:]:
-            try:
-                widget = self.query_one(f"#{key}-view")
-            except Exception:  # noqa: BLE001 - a view not in this build
-                continue
-            out[key] = tuple(getattr(widget, "PALETTE", ()))
+            out[key] = tuple(getattr(self._view_class(key), "PALETTE", ()))
         return out

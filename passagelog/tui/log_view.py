@@ -197,7 +197,7 @@ class LogView(Vertical):
             values["pos"] = check("pos", fmt.parse_position,
                                   lambda v: fmt.position(*v))
         else:
-            self._mark("fix-pos", "required", False)
+            self._mark("fix-pos", "required", True)  # not an error until Ctrl+S
             good = False
         values["hdop"] = check("hdop", lambda t: parse_optional_number(
             t, "HDOP", unit="", high=100.0), lambda v: "")

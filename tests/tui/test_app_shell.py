@@ -18,7 +18,13 @@ async def test_help_palette_and_light_dark(session):
         assert CAUTION.split()[0] in caution and "not a certified" in caution
         await pilot.press("escape")
         assert not isinstance(app.screen, HelpScreen)
-        titles = {c.title for c in app.get_system_commands(app.screen)}
+        commands = {c.title: c for c in app.get_system_commands(app.screen)}
+        titles = set(commands)
+        # a palette entry of a view not shown yet opens that view and runs the action
+        await commands["Review: XTE plot"].callback()
+        await pilot.pause()
+        assert app.query_one("#views").active == "review"
+        assert app.query_one("#review-tabs").active == "review-xte"
         assert app.theme == "textual-dark"
         await pilot.press("f9")
         assert app.theme == "textual-light"
