@@ -173,7 +173,10 @@ class GreatCircleLeg:
         self.arc_deg = float(self._line.a13)
         end = self._line.ArcPosition(self.arc_deg, Geodesic.STANDARD | Geodesic.LONG_UNROLL)
         self.initial_course = _course(self._line.azi1)
-        self.final_course = _course(end["azi2"])
+        azi2 = end["azi2"]
+        if abs(self.lat2) == 90.0:  # at a pole, refer the course to the meridian lon2 given,
+            azi2 = g.Inverse(self.lat1, self.lon1, self.lat2, self.lon2)["azi2"]  # as GeodSolve
+        self.final_course = _course(azi2)
         self._lon12_unrolled = end["lon2"] - self._line.lon1
         ln = self._line
         # Constants of the line, as geographiclib's GeodesicLine keeps them (Karney 2013,

@@ -164,3 +164,15 @@ def test_regression_gpx_unknown_xml_encoding(tmp_path):
                      '<gpx xmlns="http://www.topografix.com/GPX/1/1" version="1.1"/>\n')
         with pytest.raises(FormatError, match=r"track\.gpx"):
             read_fixes(p)
+
+
+def test_regression_great_circle_final_course_at_a_pole():
+    # A leg ending at a pole gave a final course of 0 or 180 (the line's own azimuth at the
+    # pole point); GeodSolve refers it to the meridian of the longitude given for the end:
+    # echo "50 10 -90 0" | GeodSolve -i  ->  azi2 -170;  "-30 10 90 77" -> azi2 67;
+    # "50 10 90 0" -> azi2 -10 (GeographicLib 1.52+, run on the Debian package).
+    from passagelog.nav.legs import make_leg
+
+    for case, azi2 in (((50, 10, -90, 0), 190.0), ((-30, 10, 90, 77), 67.0),
+                       ((50, 10, 90, 0), 350.0)):
+        assert make_leg(*case, "great-circle").final_course == pytest.approx(azi2, abs=1e-9)
