@@ -84,6 +84,8 @@ OFFSET_TOL_M = 1e-4
 #: At most this many geodesic inversions per position when finding the foot.
 OFFSET_MAX_ITER = 30
 
+_R_MEAN_M = 6371008.8  # a length scale for the error bound of the foot iteration
+
 _DEG = math.pi / 180.0
 
 
@@ -176,7 +178,7 @@ _NP = SimpleNamespace(
     atan=np.arctan, atan2=np.arctan2, sinh=np.sinh, hypot=np.hypot, radians=np.radians,
     degrees=np.degrees, mod=np.mod, fmod=np.fmod, abs=np.abs, sign=np.sign, where=np.where,
     sinc=np.sinc,
-    isinf=np.isinf, clip=np.clip, quadrant=_np_quadrant, asin=np.arcsin,
+    isinf=np.isinf, clip=np.clip, quadrant=_np_quadrant, asin=np.arcsin, tanh=np.tanh,
     any=lambda x: bool(np.any(x)),
     quiet=lambda: np.errstate(invalid="ignore", divide="ignore", over="ignore"),
 )
@@ -189,7 +191,7 @@ _PY = SimpleNamespace(
     sign=lambda x: 0.0 if x == 0.0 else math.copysign(1.0, x),
     where=lambda c, a, b: a if c else b, sinc=_py_sinc, isinf=math.isinf,
     clip=lambda x, lo, hi: min(max(x, lo), hi), quadrant=_py_quadrant, any=bool,
-    asin=math.asin,
+    asin=math.asin, tanh=math.tanh,
     quiet=lambda: _NULL,
 )
 
@@ -296,9 +298,11 @@ def _psi_rad(xp, fig: _Figure, phi):
     return psi
 
 
-def _phi_of_psi(xp, fig: _Figure, psi, iterations: int = 5):
+def _phi_of_psi(xp, fig: _Figure, psi, iterations: int = 2):
     """Geodetic latitude (radians) of isometric latitude ``psi``: Newton's method on tan(phi)
-    (as in Karney 2011, section 2)."""
+    (as in Karney 2011, section 2). One step from the start tau' / (1 - e^2) already gives
+    full double precision on WGS84 for |lat| <= 89.9 (checked over 100,001 latitudes); two
+    are taken."""
     taup = xp.sinh(xp.clip(psi, -40.0, 40.0))
     if fig.e2 == 0.0:
         phi = xp.atan(taup)
@@ -648,17 +652,20 @@ class RhumbLeg:
     positive to the right (starboard) of the direction of travel; ``along_m`` is negative
     before the start and exceeds ``distance_m`` past the end.
 
-    The foot is found in two stages. First in the Mercator plane, where the rhumb line is
+    The foot is found in two stages. First on the Mercator chart, where the rhumb line is
     straight and angles are true (the projection is conformal): the perpendicular from the
-    position gives an along-track estimate. Then Newton's method on the along-track
-    parameter ``s``: a geodesic inverse from the foot estimate R(s) to the position P
-    (pyproj's vectorised port of Karney 2013) gives the distance ``d`` and the azimuth at R,
-    and ``s`` moves by ``d cos(azimuth - course)``, divided by ``1 + kappa * xte`` to allow
-    for the line's geodesic curvature ``kappa = sin(course) tan(lat) / N`` (Liouville's
-    formula for a loxodrome; N the prime-vertical radius). The iteration stops when the step
-    is below :data:`OFFSET_TOL_M`; positions near the line need two inversions, positions
-    hundreds of nautical miles off three or four. ``|xte_m|`` is the geodesic distance at
-    the foot.
+    position, corrected to second order for the bending of geodesics on the chart, gives an
+    along-track estimate. Then Newton's method on the along-track parameter ``s``: a
+    geodesic inverse from the foot estimate R(s) to the position P (one vectorised call of
+    pyproj's port of Karney 2013 per iteration, on the positions not yet converged) gives
+    the distance ``d`` and the angle ``t`` at R between the course and P; on the sphere of
+    R's Gaussian radius the right triangle R-foot-P gives the shift along the tangent, which
+    is divided by ``1 + kappa * xte`` for the line's geodesic curvature ``kappa =
+    sin(course) tan(lat) / N`` (Liouville's formula for a loxodrome). The iteration stops
+    when what remains of ``s`` is below :data:`OFFSET_TOL_M` (0.1 mm; see ``_accept``):
+    positions within a few tens of nautical miles of a mid-latitude line need one inversion,
+    those hundreds of miles off two. ``xte_m`` is the cross-track leg of that triangle.
+    The scalar :meth:`offset` runs the same iteration with geographiclib's scalar inverse.
 
     A leg with coincident ends has no course and a leg ending at a pole no defined line:
     both raise :class:`GeometryError`.
@@ -691,6 +698,7 @@ class RhumbLeg:
                 "a leg needs two distinct points"
             )
         self.initial_course = self.final_course = self.course
+        self._b_over_a = math.sqrt(1.0 - fig.e2)
         self._sina, self._cosa = _sincosd(_PY, self.course)
         self._phi1 = math.radians(la1)
         self._mu1 = _mu(_PY, fig, self._phi1)
@@ -744,7 +752,7 @@ class RhumbLeg:
             d, azi, _ = _geodesic.inverse(math.degrees(phi), _norm_lon(_PY, rlon), plat, plon,
                                           self.earth)
             step, v = self._step(_PY, phi, azi, d)
-            if self._accept(_PY, step, prev):
+            if self._accept(_PY, step, prev, d, phi):
                 return v + 0.0, s + step + 0.0
             prev = step
             s = min(max(s + step, self._s_min), self._s_max)
@@ -788,8 +796,18 @@ class RhumbLeg:
         y = xp.clip(_psi_rad(xp, fig, xp.radians(xp.clip(plat, -89.9999999, 89.9999999))),
                     -psi_cap, psi_cap) - self._psi1
         h = x * self._sina + y * self._cosa  # Mercator (psi-radian) units along the line
+        # Second order: on the Mercator chart (scale 1/r, r = N cos(lat), d ln r / d psi =
+        # -sin(lat)) a geodesic bends toward the equator with curvature sin(lat) per unit of
+        # chart length, so the geodesic leaving the foot at right angles reaches the
+        # position's chart distance L from the line displaced along it by sin(lat) cos(course)
+        # L^2 / 2. sin(lat) at the middle of the connection: tanh(psi) is the sine of the
+        # conformal latitude, and sin(lat) = sin(chi) (1 + e^2 cos^2(chi)) to O(e^4).
+        dist = x * self._cosa - y * self._sina
+        sin_chi = xp.tanh(self._psi1 + h * self._cosa - 0.5 * dist * self._sina)
+        h = h + sin_chi * (1.0 + fig.e2 * (1.0 - sin_chi * sin_chi)) * self._cosa * (
+            0.5 * dist * dist)
         phi_f = _phi_of_psi(xp, fig, xp.clip(self._psi1 + h * self._cosa, -psi_cap, psi_cap),
-                            iterations=2)  # a start for Newton's method needs no more
+                            iterations=1)
         if abs(self._cosa) >= _STEEP_COS:
             # metres along the rhumb line: the meridian arc over cos(course)
             s = fig.A * (_mu(xp, fig, phi_f) - self._mu1) / self._cosa
@@ -813,21 +831,32 @@ class RhumbLeg:
         theta = xp.radians(azi - self.course)
         sphi = xp.sin(phir)
         w2 = 1.0 - fig.e2 * sphi * sphi
-        n_rad = fig.a / xp.sqrt(w2)  # prime vertical radius N
-        r = n_rad * xp.sqrt((1.0 - fig.e2) / w2)  # Gaussian radius sqrt(rho N)
+        w = xp.sqrt(w2)  # N = a / w, rho = a (1 - e^2) / w^3
+        r = self._b_over_a * fig.a / w2  # Gaussian radius sqrt(rho N) = a sqrt(1 - e^2) / w^2
         sig = d / r
         u = r * xp.atan(xp.tan(sig) * xp.cos(theta))
         v = r * xp.asin(xp.sin(sig) * xp.sin(theta))
-        kappa = self._sina * xp.tan(phir) / n_rad
+        kappa = self._sina * xp.tan(phir) * w / fig.a
         den = 1.0 + kappa * v
         return u / xp.where(den > 0.5, den, 0.5), v
 
-    def _accept(self, xp, step, prev):
-        """The foot has converged when the step is below :data:`OFFSET_TOL_M`, or when the
-        rate of convergence seen over the last two steps puts what remains after this one
-        below a tenth of it."""
+    def _accept(self, xp, step, prev, d, phir):
+        """Whether the foot has converged (to :data:`OFFSET_TOL_M`) once ``step`` is taken.
+
+        Yes when the step itself is below the tolerance; or when the rate of convergence seen
+        over the last two steps puts what remains below a tenth of it; or, after the first
+        inversion (``prev`` is NaN), when a bound on the error of the step does. The step is
+        exact to first order; its error was found to stay below
+        ``sec^2(lat) * ((d/R)^3 |step| + step^2 / R)`` (R = 6371 km) for |lat| <= 85 degrees
+        and offsets to 250 NM; twice that is used, and only for d/R < 0.05."""
         a = xp.abs(step)
-        return (a < OFFSET_TOL_M) | (a * a < 0.1 * OFFSET_TOL_M * xp.abs(prev))
+        tol = OFFSET_TOL_M
+        rate = a * a < 0.1 * tol * xp.abs(prev)
+        cphi = xp.cos(phir)
+        dr = d / _R_MEAN_M
+        bound = 2.0 / (cphi * cphi) * (dr * dr * dr * a + a * a / _R_MEAN_M)
+        first = (prev != prev) & (bound < 0.1 * tol) & (dr < 0.05)  # prev is NaN
+        return (a < tol) | rate | first
 
     def _newton(self, plat, plon, s):
         n = plat.size
@@ -835,16 +864,19 @@ class RhumbLeg:
         along = np.zeros(n)
         prev = np.full(n, np.nan)  # no step yet: no rate of convergence
         active = np.arange(n)
-        for _ in range(OFFSET_MAX_ITER):
+        for it in range(OFFSET_MAX_ITER):
             if active.size == 0:
                 break
-            sa = s[active]
+            if it == 0:  # all positions: no gathering
+                sa, alat, alon = s, plat, plon
+            else:
+                sa, alat, alon = s[active], plat[active], plon[active]
             phi, rlon = _direct_lat_lon(_NP, self._fig, self._phi1, self._mu1, self.lon1,
                                         self._sina, self._cosa, sa, self._psi1)
-            d, azi, _ = _geodesic.inverse_np(np.degrees(phi), _norm_lon(_NP, rlon),
-                                             plat[active], plon[active], self.earth)
+            d, azi, _ = _geodesic.inverse_np(np.degrees(phi), _norm_lon(_NP, rlon), alat, alon,
+                                             self.earth)
             step, v = self._step(_NP, phi, azi, d)
-            done = self._accept(_NP, step, prev[active])
+            done = self._accept(_NP, step, np.nan if it == 0 else prev[active], d, phi)
             fin = active[done]
             xte[fin] = v[done]
             along[fin] = sa[done] + step[done]
