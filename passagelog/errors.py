@@ -50,6 +50,10 @@ class StoreError(PassagelogError):
     """The logbook refused an operation."""
 
 
+class BusyError(StoreError):
+    """The logbook stayed locked by another writer for longer than the busy timeout."""
+
+
 class NotFoundError(StoreError, LookupError):
     """A craft, voyage, plan, fix or entry that is not in the logbook."""
 

@@ -47,6 +47,7 @@ def feed(ctx: click.Context, udp: str | None, tcp: str | None, serial_dev: str |
     """
     from passagelog.feed.logger import Feed, LogPolicy
     from passagelog.feed import sources
+    from passagelog.errors import BusyError
     from passagelog.store import Logbook
 
     chosen = [name for name, on in (("--udp", udp), ("--tcp", tcp), ("--serial", serial_dev),
@@ -73,7 +74,14 @@ def feed(ctx: click.Context, udp: str | None, tcp: str | None, serial_dev: str |
         if not quiet:
             click.echo(f"feed: {text}", err=True)
 
-    runner = Feed(lines, lambda fix: book.add_fix(target.voyage_id, fix),
+    def write(fix):
+        while True:  # another program's long write (an import) holds the lock: wait it out
+            try:
+                return book.add_fix(target.voyage_id, fix)
+            except BusyError:
+                say("the logbook is busy (another program is writing); waiting to log the fix")
+
+    runner = Feed(lines, write,
                   LogPolicy(every_s=every_min * 60.0,
                             course_change_deg=course_deg if course_deg > 0 else None),
                   max_lines_per_s=max_rate, on_event=say)

@@ -18,7 +18,7 @@ from typing import Any, Callable, Iterable, Iterator, Sequence
 
 import numpy as np
 
-from passagelog.errors import InputError, IntegrityError, NotFoundError, StoreError
+from passagelog.errors import BusyError, InputError, IntegrityError, NotFoundError, StoreError
 from passagelog.model import (
     Craft, Fix, LegPlan, LogEntry, Route, ScheduleItem, Voyage, Waypoint, check_utc,
 )
@@ -282,6 +282,8 @@ class Logbook:
     def _migrate(self, migrations: dict[int, str] | None = None) -> None:
         migrations = MIGRATIONS if migrations is None else migrations
         target = max(migrations)
+        if self.schema_version == target:
+            return  # up to date: no write lock (a reader must not wait for a long import)
         with self.transaction():
             have = self.schema_version
             if have > target:
@@ -305,7 +307,12 @@ class Logbook:
         made inside is rolled back and the exception goes on."""
         conn = self._conn
         if self._depth == 0:
-            conn.execute("BEGIN IMMEDIATE")
+            try:
+                conn.execute("BEGIN IMMEDIATE")
+            except sqlite3.OperationalError as exc:  # "database is locked" after the timeout
+                raise BusyError(
+                    f"logbook {str(self.path)!r} is busy: another program has been writing to "
+                    f"it for more than {BUSY_TIMEOUT_S:g} s ({exc}); try again") from None
         else:
             conn.execute(f"SAVEPOINT sp{self._depth}")
         self._depth += 1

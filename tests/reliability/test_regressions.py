@@ -176,3 +176,78 @@ def test_regression_great_circle_final_course_at_a_pole():
     for case, azi2 in (((50, 10, -90, 0), 190.0), ((-30, 10, 90, 77), 67.0),
                        ((50, 10, 90, 0), 350.0)):
         assert make_leg(*case, "great-circle").final_course == pytest.approx(azi2, abs=1e-9)
+
+
+def test_regression_reader_waits_for_a_long_import(tmp_path, monkeypatch):
+    # Logbook.open took the write lock (its schema check ran in BEGIN IMMEDIATE) even when
+    # there was nothing to migrate, so 'passagelog review' failed with "database is locked"
+    # while an import of 200,000 lines held the lock for 20 s; and a writer that waited past
+    # the busy timeout got sqlite3.OperationalError (a traceback that ended the feed).
+    from passagelog.errors import BusyError
+    from passagelog.model import Fix, Voyage
+    from passagelog.store import Logbook
+    from passagelog.store import logbook as lb
+
+    db = tmp_path / "book.sqlite"
+    with Logbook.open(db) as book:
+        book.add_voyage(Voyage("V"))
+        book.add_fix("V", Fix(T0, 50.0, -1.0))
+    monkeypatch.setattr(lb, "BUSY_TIMEOUT_S", 0.2)
+    writer = Logbook.open(db)
+    try:
+        with writer.transaction():
+            writer.add_fix("V", Fix(T0.replace(minute=1), 50.0, -1.01))  # holds the lock
+            reader = Logbook.open(db)  # no wait, no error
+            try:
+                assert len(reader.fixes("V")) == 1  # the committed state
+                with pytest.raises(BusyError, match=r"book\.sqlite.*busy"):
+                    reader.add_fix("V", Fix(T0.replace(minute=2), 50.0, -1.02))
+            finally:
+                reader.close()
+    finally:
+        writer.close()
+    with Logbook.open(db) as book:
+        assert len(book.fixes("V")) == 2 and book.verify().ok
+
+
+def test_regression_feed_survives_a_long_import(tmp_path, monkeypatch):
+    # The feed's write failed with "database is locked" while an import held the lock past the
+    # busy timeout: the process ended with a traceback and every later fix was lost. Now the
+    # feed waits for the lock and logs every fix.
+    import threading
+
+    from passagelog.model import Fix, Voyage
+    from passagelog.store import Logbook
+    from passagelog.store import logbook as lb
+
+    db = tmp_path / "book.sqlite"
+    with Logbook.open(db) as book:
+        book.add_voyage(Voyage("V"))
+        book.add_voyage(Voyage("Import"))
+    monkeypatch.setattr(lb, "BUSY_TIMEOUT_S", 0.2)
+    holding, release = threading.Event(), threading.Event()
+
+    def long_import():
+        with Logbook.open(db) as other, other.transaction():
+            other.add_fix("Import", Fix(T0, 10.0, 10.0))
+            holding.set()
+            release.wait(10)
+
+    lines = "".join(nmea(f"GPRMC,06{m:02d}00,A,5000.000,N,00100.000,W,5.0,90.0,010526,,")
+                    for m in range(5))
+    th = threading.Thread(target=long_import)
+    th.start()
+    try:
+        assert holding.wait(10)
+        timer = threading.Timer(1.0, release.set)  # the "import" commits after a second
+        timer.start()
+        code, _out, err = relkit.run_cli(["--db", str(db), "feed", "--stdin", "--every", "1",
+                                          "--voyage", "V"], stdin=lines)
+    finally:
+        release.set()
+        th.join(10)
+    assert code == 0, err
+    assert "busy" in err and "Traceback" not in err
+    with Logbook.open(db) as book:
+        assert [f.time_utc.minute for f in book.fixes("V")] == [0, 1, 2, 3, 4]
+        assert book.verify().ok
