@@ -67,7 +67,7 @@ def _watch(text: str, who: str, outcome: Outcome) -> None:
 def run(work: Path, seconds: float, rate: float, import_lines: int, log=print) -> Outcome:
     out = Outcome(seconds, rate)
     db = work / "together.sqlite"
-    max_imports = 200
+    max_imports = max(4, int(seconds))  # far more than run in the time (one is ~2 s)
     rc.make_logbook(db, ["Live"] + [f"imp-{k}" for k in range(1, max_imports + 1)])
     base = work / "base.nmea"
     out.import_fixes_each = rc.write_nmea_log(base, import_lines)

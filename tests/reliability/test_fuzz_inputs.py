@@ -33,8 +33,8 @@ LONG = settings(max_examples=5_000, deadline=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
 
 #: seeds of the mutation loops (the slow run uses SEEDS_SLOW after SEEDS_FAST)
-SEEDS_FAST = range(0, 1500)
-SEEDS_SLOW = range(1500, 61_500)
+SEEDS_FAST = range(0, 1000)
+SEEDS_SLOW = range(1000, 61_000)
 
 # ---------------------------------------------------------------------------------------------
 # positions
@@ -185,7 +185,7 @@ def _check_nmea(lines: list[str]) -> None:
             (reason, places)
 
 
-@FAST
+@settings(FAST, max_examples=150)
 @given(nmea_log())
 def test_nmea_lines_give_sane_fixes_and_counted_rejects(lines):
     try:
@@ -227,7 +227,7 @@ def routes(draw):
     return Route(draw(names) or "r", wps, legs)
 
 
-@FAST
+@settings(FAST, max_examples=150)
 @given(routes(), st.sampled_from(["rtz", "gpx", "route-csv"]))
 def test_written_route_reads_back_or_the_writer_refuses(tmp_path, route, fmt):
     path = tmp_path / f"gen.{fmt}"
