@@ -762,9 +762,9 @@ class RhumbLeg:
         """Batch :meth:`offset` over broadcast arrays: ``(xte_m, along_m)`` float64 arrays.
 
         Raises :class:`GeometryError` (naming the first such position) if the foot of a
-        position cannot be found, which happens only for positions far from a line that
-        runs near a pole (where the extended line spirals into the pole and the distance
-        to it has several minima).
+        position cannot be found: positions thousands of kilometres from the line, or
+        hundreds near a pole, where the extended line spirals toward the pole and the
+        distance to it has several minima. Never returns NaN.
         """
         lats, lons = _arrays(lats, lons)
         _check_lat("lat", lats)
@@ -784,8 +784,8 @@ class RhumbLeg:
         return GeometryError(
             f"{self!r}: the foot of the perpendicular from position {i} ({lat!r}, {lon!r}) "
             f"on the extended line was not found in {OFFSET_MAX_ITER} steps ({count} "
-            "position(s) affected); such positions lie too far from a line that runs near "
-            "a pole"
+            "position(s) affected); the position is too far from the line, whose extension "
+            "spirals toward the poles so that the distance to it has several minima"
         )
 
     def _initial_along(self, xp, plat, plon):
