@@ -64,7 +64,7 @@ PLAN_SCHEDULE_COLS = ("revision_id", "idx", "waypoint_index", "eta_utc", "etd_ut
                       "schedule_name")
 
 _FORMATS = {chain: "\x1f".join(["%r"] * len(cols)) for chain, cols in CHAINS.items()}
-_FIX_STRUCT = struct.Struct("<qqddddqddddqqd7i")
+FIX_STRUCT = struct.Struct("<qqddddqddddqqd7i")
 _NAN = float("nan")
 
 
@@ -73,7 +73,7 @@ def fix_bytes(row: tuple) -> bytes:
     (fid, vid, tu, ts, lat, lon, method, hdop, sats, mode, cog, sog, hdg, stw, remarks, source,
      sup, reason, rec, suspect, implied) = row
     # "+ 0.0" turns -0.0 into 0.0, as SQLite stores it
-    return _FIX_STRUCT.pack(
+    return FIX_STRUCT.pack(
         fid, vid, ts + 0.0, lat + 0.0, lon + 0.0, _NAN if hdop is None else hdop + 0.0,
         -1 if sats is None else sats, _NAN if cog is None else cog + 0.0,
         _NAN if sog is None else sog + 0.0, _NAN if hdg is None else hdg + 0.0,
