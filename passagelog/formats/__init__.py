@@ -121,6 +121,9 @@ def _prepare(source: Source, fmt: str | None, allowed: tuple[str, ...], what: st
             head = read_head(source)
         except OSError as exc:
             raise FormatError(f"cannot open the file: {exc.strerror}", where=name) from None
+        except ValueError:  # open() refuses a path with a NUL character
+            raise FormatError("cannot open the file: its name holds a NUL character",
+                              where=repr(name)) from None
     else:
         raw = sys.stdin if not hasattr(source, "read") else source
         head, stream = peek_stream(raw)  # type: ignore[arg-type]

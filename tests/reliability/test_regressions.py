@@ -251,3 +251,11 @@ def test_regression_feed_survives_a_long_import(tmp_path, monkeypatch):
     with Logbook.open(db) as book:
         assert [f.time_utc.minute for f in book.fixes("V")] == [0, 1, 2, 3, 4]
         assert book.verify().ok
+
+
+def test_regression_formats_path_with_nul():
+    # A path holding NUL (possible from the library, not from a command line): open() raised
+    # ValueError, which escaped read_routes and read_fixes.
+    for read in (read_routes, read_fixes):
+        with pytest.raises(FormatError, match="NUL"):
+            read("route\x00.csv")
