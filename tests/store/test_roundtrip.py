@@ -117,5 +117,34 @@ def test_craft_and_voyage_round_trip(shared, craft, voyage_name, frm, to, dep, z
                                                           "voyage_id": sv.voyage_id})
 
 
+
+
+@SETTINGS
+@given(from_utc=st.none() | times, use_rev=st.booleans())
+def test_plan_assignment_round_trip(shared, from_utc, use_rev):
+    if not shared.list_plans():
+        shared.create_plan(Route("A", (Waypoint("a", 1, 1), Waypoint("b", 2, 2))), "n",
+                           name="assign")
+    plan = shared.list_plans()[0]
+    a = shared.assign_plan("RT", plan.plan_id, plan.latest_revision if use_rev else None,
+                           from_utc)
+    stored = [x for x in shared.plan_assignments("RT") if x.assignment_id == a.assignment_id]
+    assert stored == [a]
+    assert (a.from_utc, a.revision) == (from_utc, plan.latest_revision)
+
+
+@SETTINGS
+@given(digest=st.binary(min_size=32, max_size=32), source=name, kind=name,
+       counts=st.dictionaries(name, st.integers(0, 10**9), max_size=3))
+def test_import_record_round_trip(shared, digest, source, kind, counts):
+    sha = digest.hex()
+    if shared.has_import(sha):
+        return
+    shared.record_import(sha.upper(), source, kind, counts)
+    assert shared.has_import(sha)
+    info = [i for i in shared.imports() if i.sha256 == sha]
+    assert [(i.source_name, i.kind, i.counts) for i in info] == [(source, kind, counts)]
+
+
 def test_everything_written_by_the_properties_verifies(shared):
     assert shared.verify().ok
