@@ -916,13 +916,19 @@ class Logbook:
             gone = [s for (s,) in self._q(
                 "SELECT supersedes FROM fix INDEXED BY fix_supersedes "
                 "WHERE supersedes IS NOT NULL")]
-        arr = np.frombuffer(b"".join(blobs), dtype=BLOCK_DTYPE)
+        parts = [np.frombuffer(b, dtype=BLOCK_DTYPE) for b in blobs]
+        cols = {name: (np.concatenate([p[name] for p in parts]) if parts
+                       else np.empty(0, BLOCK_DTYPE[name])) for name in BLOCK_DTYPE.names}
+        keep = None
         if gone:
-            arr = arr[~np.isin(arr["fix_id"], np.array(gone, dtype=np.int64))]
-        t = arr["time_s"]
-        if len(arr) > 1 and not (np.diff(t) >= 0).all():
-            arr = arr[np.lexsort((arr["fix_id"], t))]
-        cols = {name: np.ascontiguousarray(arr[name]) for name in BLOCK_DTYPE.names}
+            keep = ~np.isin(cols["fix_id"], np.array(gone, dtype=np.int64))
+        t = cols["time_s"] if keep is None else cols["time_s"][keep]
+        if len(t) > 1 and not (np.diff(t) >= 0).all():
+            ids = cols["fix_id"] if keep is None else cols["fix_id"][keep]
+            order = np.lexsort((ids, t))
+            keep = order if keep is None else np.flatnonzero(keep)[order]
+        if keep is not None:
+            cols = {name: col[keep] for name, col in cols.items()}
         cols["suspect"] = cols["suspect"].astype(bool)
         return FixArrays(**cols)
 

@@ -372,3 +372,31 @@ def test_poll_counters(book, voyage, tmp_path):
         assert book.data_version() != seen
     assert book.latest_fix_id(voyage) == 1
     assert book.latest_fix(voyage).fix_id == 1
+
+
+from hypothesis import HealthCheck, given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+
+@settings(max_examples=25, deadline=None,
+          suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(minutes=st.lists(st.integers(0, 50), min_size=1, max_size=30),
+       corrections=st.lists(st.tuples(st.integers(0, 40), st.integers(0, 50)), max_size=8),
+       batch=st.integers(1, 7))
+def test_property_fix_arrays_is_the_current_view(tmp_path_factory, minutes, corrections,
+                                                 batch):
+    """Fixes written out of time order in batches, some corrected (to other times): the
+    arrays hold exactly the current fixes of fixes(), in the same order."""
+    with Logbook.open(tmp_path_factory.mktemp("fa") / "log.sqlite") as book:
+        book.add_voyage(Voyage("V"))
+        book.add_fixes("V", [_fix(m / 60, 50 + m * 1e-3) for m in minutes], batch_size=batch)
+        for pick, m in corrections:
+            current = book.fixes("V")
+            target = current[pick % len(current)]
+            book.correct_fix("V", target.fix_id, _fix(m / 60, 51 + m * 1e-3), "moved")
+        view = book.fixes("V")
+        arr = book.fix_arrays("V")
+        assert arr.fix_id.tolist() == [f.fix_id for f in view]
+        assert arr.time_s.tolist() == [f.time_utc.timestamp() for f in view]
+        assert arr.lat.tolist() == [f.lat for f in view]
+        assert arr.suspect.dtype == bool and len(arr) == len(minutes)
