@@ -66,3 +66,30 @@ def test_reader_and_writer_processes_at_once(tmp_path):
         n += 1 if i % 2 else 5
         whole.add(n)
     assert set(seen) <= whole
+
+
+def test_opening_and_reading_while_a_writer_holds_its_transaction(tmp_path):
+    """A long import holds the write lock; the TUI must still open the logbook and read."""
+    import sqlite3
+
+    path = tmp_path / "log.sqlite"
+    with Logbook.open(path) as book:
+        book.add_voyage(Voyage("V"))
+        book.add_fix("V", Fix(T0, 50.0, -1.0))
+    with Logbook.open(path) as writer:
+        with writer.transaction():
+            writer.add_fix("V", Fix(T0 + timedelta(minutes=1), 50.01, -1.0))
+            conn = sqlite3.connect(path, timeout=0.2)  # would wait on a lock for 0.2 s only
+            conn.close()
+            import passagelog.store.logbook as lb
+
+            old = lb.BUSY_TIMEOUT_S
+            lb.BUSY_TIMEOUT_S = 0.2
+            try:
+                with Logbook.open(path) as reader:
+                    assert len(reader.fix_arrays("V")) == 1  # the snapshot before the write
+                    assert reader.verify().ok
+            finally:
+                lb.BUSY_TIMEOUT_S = old
+        with Logbook.open(path) as reader:
+            assert len(reader.fix_arrays("V")) == 2
