@@ -325,16 +325,23 @@ class Logbook:
             yield self
         except BaseException:
             self._depth -= 1
-            if self._depth == 0:
-                conn.execute("ROLLBACK")
-            else:
-                conn.execute(f"ROLLBACK TO sp{self._depth}")
-                conn.execute(f"RELEASE sp{self._depth}")
+            if conn.in_transaction:  # SQLite may have rolled back already (disk full, ...)
+                if self._depth == 0:
+                    conn.execute("ROLLBACK")
+                else:
+                    conn.execute(f"ROLLBACK TO sp{self._depth}")
+                    conn.execute(f"RELEASE sp{self._depth}")
             raise
         else:
             self._depth -= 1
             if self._depth == 0:
-                conn.execute("COMMIT")
+                try:
+                    conn.execute("COMMIT")
+                except sqlite3.Error as exc:
+                    if conn.in_transaction:
+                        conn.execute("ROLLBACK")
+                    raise StoreError(f"logbook {str(self.path)!r}: the write could not be "
+                                     f"committed and was undone ({exc})") from None
             else:
                 conn.execute(f"RELEASE sp{self._depth}")
 

@@ -400,3 +400,17 @@ def test_property_fix_arrays_is_the_current_view(tmp_path_factory, minutes, corr
         assert arr.time_s.tolist() == [f.time_utc.timestamp() for f in view]
         assert arr.lat.tolist() == [f.lat for f in view]
         assert arr.suspect.dtype == bool and len(arr) == len(minutes)
+
+
+def test_a_failed_commit_is_undone_and_the_logbook_stays_usable(book, voyage, row_counts):
+    before = row_counts(book)
+    with pytest.raises(StoreError, match="could not be committed and was undone"):
+        with book.transaction():
+            book.add_fix(voyage, _fix(0, 50.0))
+            # a foreign key checked only at COMMIT (deferred) makes the COMMIT itself fail
+            book._conn.execute("PRAGMA defer_foreign_keys = ON")
+            book._conn.execute("INSERT INTO fix_block (voyage_id, n, last_fix_id, data) "
+                               "VALUES (999, 1, 1, x'00')")
+    assert row_counts(book) == before
+    assert book.add_fix(voyage, _fix(0, 50.0)).fix_id == 1
+    assert book.verify().ok
