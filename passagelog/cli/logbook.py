@@ -643,10 +643,16 @@ def entry_list(ctx, voyage_name, history, as_json, as_csv) -> None:
     """List a voyage's log entries in time order, or every record with --history."""
     from passagelog.nav.zonetime import format_zd
 
+    from passagelog.nav.zonetime import format_ship_time
+
     with open_book(ctx, create=False) as book:
-        records = [entry_record(book, e) for e in book.entries(voyage_name, history=history)]
+        items = book.entries(voyage_name, history=history)
+        records = [entry_record(book, e) for e in items]
+        ship = {e.entry_id: format_ship_time(e.time_utc, book.zone_at(voyage_name, e.time_utc))
+                for e in items} if not (as_json or as_csv) else {}
     emit(records, ENTRY_COLUMNS, as_json, as_csv, [
         ("ID", lambda r: r["entry_id"]), ("TIME UTC", lambda r: r["time_utc"]),
+        ("SHIP TIME", lambda r: ship[r["entry_id"]]),
         ("KIND", lambda r: r["kind"]),
         ("ZD", lambda r: None if r["zd_minutes"] is None else format_zd(r["zd_minutes"])),
         ("TEXT", lambda r: "; ".join(x for x in (

@@ -258,10 +258,11 @@ def test_entries(kept):
               "--time", "2026-03-01T08:10Z") == (
         "entry 3  2026-03-01T08:10:00Z  departure  supersedes entry 1\n")
     assert ok(db, "entry", "list", "Solent run") == (
-        "ID  TIME UTC              KIND          ZD  TEXT\n"
-        "3   2026-03-01T08:10:00Z  departure     -   let go, proceeding; corrects 1: wrong "
-        "time\n"
-        "2   2026-03-01T12:00:00Z  clock-change  0   clocks retarded 1 h\n")
+        "ID  TIME UTC              SHIP TIME                 KIND          ZD  TEXT\n"
+        "3   2026-03-01T08:10:00Z  2026-03-01T09:10:00 ZD-1  departure     -   let go, "
+        "proceeding; corrects 1: wrong time\n"
+        "2   2026-03-01T12:00:00Z  2026-03-01T12:00:00 ZD0   clock-change  0   clocks "
+        "retarded 1 h\n")
     rows = json.loads(ok(db, "entry", "list", "Solent run", "--history", "--json"))
     assert [e["entry_id"] for e in rows] == [1, 2, 3]
     assert list(rows[0]) == ["entry_id", "time_utc", "kind", "text", "zd_minutes", "lat",
