@@ -149,3 +149,31 @@ def test_track_round_trip_and_gpxpy_reads_it(tmp_path):
     points = parsed.tracks[0].segments[0].points
     assert [p.time.astimezone(UTC) for p in points] == [f.time_utc for f in FIXES]
     assert (points[0].satellites, points[0].horizontal_dilution) == (9, 0.8)
+
+
+# The order of the GPX 1.1 schema (gpx.xsd, wptType): ele, time, magvar, geoidheight, name,
+# cmt, desc, src, link, sym, type, fix, sat, hdop, vdop, pdop, ageofdgpsdata, dgpsid,
+# extensions; gpxType: metadata, wpt, rte, trk, extensions.
+WPT_ORDER = ["ele", "time", "magvar", "geoidheight", "name", "cmt", "desc", "src", "link",
+             "sym", "type", "fix", "sat", "hdop", "vdop", "pdop", "ageofdgpsdata", "dgpsid",
+             "extensions"]
+
+
+def test_written_gpx_follows_the_schema_order():
+    import xml.etree.ElementTree as ET
+
+    from passagelog.formats import write_voyage
+
+    out = io.StringIO()
+    write_voyage([ROUTE], FIXES, out, name="V")
+    root = ET.fromstring(out.getvalue().encode("utf-8"))
+    assert root.get("version") == "1.1" and root.get("creator") == "passagelog"
+    local = [c.tag.split("}")[1] for c in root]
+    assert local == ["rte", "trk"]
+    points = [p for p in root.iter() if p.tag.split("}")[1] in ("rtept", "trkpt")]
+    assert len(points) == 5
+    for p in points:
+        names = [c.tag.split("}")[1] for c in p]
+        assert names == sorted(names, key=WPT_ORDER.index), names
+    rte = root[0]
+    assert [c.tag.split("}")[1] for c in rte][0] == "name"
