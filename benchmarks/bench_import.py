@@ -19,10 +19,10 @@ checks of every field, epochs, dates, ``Fix`` objects), the import record. Peak 
 the maximum resident set size of a child process doing the import, for N/10 and N lines:
 flat memory means the two are about the same.
 
-Figures (2-core machine shared with other work, load about 2; 200,000 lines): pynmea2.parse
-8.5 us/line, parse + values 59 us/line, passagelog read 24 us/line, import into the logbook
-64 us/line: 1.07x the parse-and-values baseline (target met), 7.4x the bare parse (which
-converts nothing); peak RSS 79 MB for 20,000 lines and 79 MB for 200,000 (flat).
+Figures (2-core machine, quiet, 1,000,000 lines): pynmea2.parse 4.8 us/line, parse + values
+20.3 us/line, passagelog read 7.6 us/line, import into the logbook 21.8 us/line: 1.07x the
+parse-and-values baseline (target met), 4.5x the bare parse (which converts nothing); peak
+RSS 80 MB for 100,000 lines and 80 MB for 1,000,000 (flat).
 """
 
 from __future__ import annotations

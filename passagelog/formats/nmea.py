@@ -8,9 +8,9 @@ for the framing because it is too lenient for a logbook (a missing checksum pass
 ``check=True``, empty or truncated positions come back as 0.0 and failed numeric conversions
 as strings), and because the framing and the two high-volume sentences (RMC and GGA) must be
 fast. RMC and GGA fields are read by own code; a clean RMC goes through one strict pattern
-(the fast path below), reading the line and making its Fix in about 24 us where
-``pynmea2.parse`` plus reading the position and the time takes about 59 us (figures from
-benchmarks/bench_import.py on a shared 2-core machine). The rarer
+(the fast path below), reading the line and making its Fix in about 7.6 us where
+``pynmea2.parse`` plus reading the position and the time takes about 20 us (figures from
+benchmarks/bench_import.py, 1,000,000 lines, quiet 2-core machine). The rarer
 sentences (GLL, VTG, HDT, ZDA) are split into named fields by pynmea2 after the strict
 framing, and every field it returns is validated again from its raw text here.
 
