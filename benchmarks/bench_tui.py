@@ -122,9 +122,12 @@ async def run_app(path: Path) -> dict:
             await asyncio.sleep(0.005)
         out["watch_s"] = time.perf_counter() - t0
         out["watch_from_start_s"] = time.perf_counter() - t_start
-        review = app.query_one("#review-view")
         t0 = time.perf_counter()
         await pilot.press("f5")
+        while not app.query("#review-view"):  # mounted when first shown
+            await asyncio.sleep(0.005)
+        review = app.query_one("#review-view")
+        out["review_first_paint_s"] = time.perf_counter() - t0
         while not review.computed:
             await asyncio.sleep(0.005)
         await pilot.pause()
@@ -162,6 +165,8 @@ def main(argv=None) -> int:
         verdict = "met" if v <= 1.0 else "NOT met"
         print(f"{label:34s} {v:6.2f} s  = {v / base:5.1f}x baseline  (target <= 1 s: "
               f"{verdict})")
+    print(f"Review view on screen after F5     {r['review_first_paint_s']:6.2f} s "
+          "(its figures follow when the engine is done)")
     print(f"Watch ready from app start          {r['watch_from_start_s']:6.2f} s "
           "(the watch starts working at mount, before F4)")
     print(f"longest UI stall (10 ms probe)      {r['longest_stall_s']:6.2f} s")

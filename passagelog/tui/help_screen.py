@@ -11,8 +11,6 @@ from textual.widgets import Markdown, Static
 from passagelog import CAUTION
 
 HELP_TEXT = """\
-# passagelog
-
 **Views** (switch with the keys, or click the tabs)
 
 | key | view | what it is for |
@@ -66,6 +64,8 @@ class HelpScreen(ModalScreen[None]):
 
     def compose(self) -> ComposeResult:
         with VerticalScroll(id="help-box"):
+            yield Static("Help (Esc, q or F1 closes it; arrows or PgUp/PgDn scroll)",
+                         id="help-title")
             yield Static(f"CAUTION  {CAUTION}", id="help-caution")
             yield Markdown(HELP_TEXT, id="help-text")
 

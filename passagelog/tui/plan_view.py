@@ -75,7 +75,8 @@ class PlanView(Vertical):
 
     def compose(self) -> ComposeResult:
         yield Static("", id="plan-head", classes="view-head")
-        table = DataTable(id="plan-table", cursor_type="row", zebra_stripes=True)
+        table = DataTable(id="plan-table", cursor_type="row", zebra_stripes=True,
+                          fixed_columns=2)  # number and name stay when scrolled sideways
         yield table
         with Grid(id="plan-editor"):
             for fid, label, placeholder in FIELDS[:2]:
@@ -194,7 +195,8 @@ class PlanView(Vertical):
                 self.query_one(f"#plan-{fid}", Input).disabled = i == 0
             self.query_one("#plan-sailing", Select).disabled = i == 0
             self.query_one("#plan-message", Static).update(
-                "Row 1 is the departure point: leg settings start at row 2."
+                "Row 1 is the departure point: leg settings start at row 2. "
+                "\u2190/\u2192 scroll the table sideways."
                 if i == 0 else f"Editing row {i + 1}: {row.name} and the leg ending at it.")
         finally:
             self.call_after_refresh(self._done_loading)

@@ -289,7 +289,8 @@ class ReviewView(Vertical):
                 raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
             plan = [(t, r) for t, r in s.plan_revisions] or s.route
             review = reconcile(plan, s.fix_arrays(), zd_minutes=s.zd_minutes,
-                               entries=s.entries())
+                               entries=s.entries(),
+                               planned_departure_utc=s.voyage.departure_utc)
         except Exception as exc:  # noqa: BLE001 - shown in the view, never fatal
             self.app.call_from_thread(self._failed, str(exc))
             return

@@ -75,15 +75,17 @@ class Session:
         return chosen
 
     def reload_route(self) -> Route | None:
-        """The plan revision in force now (the last of the voyage's plan schedule)."""
-        self.route = None
-        self.plan_revisions = []
+        """The plan revision in force now (the last of the voyage's plan schedule). Worker
+        threads call this too: the new values are put in place together, never cleared
+        first, so a reader in another thread sees the old plan or the new one."""
+        route, schedule = None, []
         if self.voyage is not None:
             schedule = self.logbook.plan_schedule(self.voyage.voyage_id)
-            self.plan_revisions = schedule
             if schedule:
-                self.route = schedule[-1][1]
-        return self.route
+                route = schedule[-1][1]
+        with self._lock:
+            self.plan_revisions, self.route = schedule, route
+        return route
 
     @property
     def zd_minutes(self) -> int:

@@ -59,7 +59,8 @@ class WatchState:
 
 def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
                   settings: WatchSettings = WatchSettings(), plan_revisions=None,
-                  departure_utc: datetime | None = None) -> WatchState:
+                  departure_utc: datetime | None = None,
+                  planned_departure_utc: datetime | None = None) -> WatchState:
     """Reconcile the recent fixes (``fixes``: FixArrays or Fix objects) with ``route``."""
     from passagelog.review.engine import reconcile
     from passagelog.review.inputs import as_fix_arrays
@@ -87,7 +88,9 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
         tail = arrays.take(sel)
         plan = in_force[-1][1]
         k0 = _leg_at(plan, float(tail.lat[0]), float(tail.lon[0]))
-        schedule = _scheduled_times(plan, _departure_s(arrays, entries))
+        schedule = _scheduled_times(plan, planned_departure_utc.timestamp()
+                                    if planned_departure_utc is not None
+                                    else _departure_s(arrays, entries))
         sub = plan.with_changes(waypoints=plan.waypoints[k0:], legs=plan.legs[k0:],
                                 schedule=())
         review = reconcile(sub, tail, zd_minutes=zd_minutes, entries=entries,
@@ -100,6 +103,7 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
         review = reconcile(revisions if plan_revisions else route, arrays,
                            zd_minutes=zd_minutes, entries=entries,
                            window_s=settings.window_s, departure_utc=departure_utc,
+                           planned_departure_utc=planned_departure_utc,
                            detail_from_utc=last_s - settings.window_s - 60.0)
     if len(review.fixes) == 0:
         return WatchState(None, fixes_total=total, note="No valid fix to show.")

@@ -85,7 +85,8 @@ class WatchView(Vertical, can_focus=True):
             revisions = [(t, r) for t, r in getattr(s, "plan_revisions", [])] or None
             state = compute_watch(s.route, s.fix_arrays(), zd_minutes=s.zd_minutes,
                                   entries=s.entries(), settings=self.settings,
-                                  plan_revisions=revisions)
+                                  plan_revisions=revisions,
+                                  planned_departure_utc=s.voyage.departure_utc)
         except Exception as exc:  # noqa: BLE001 - shown in the view; the watch goes on
             state = WatchState(None, note=f"Cannot reconcile the latest fixes: {exc}")
         self.app.call_from_thread(self._show, state)

@@ -97,12 +97,19 @@ async def test_delete_reverse_and_undo(session):
     app = PassagelogApp(session=session, watch_poll_s=5.0)
     async with app.run_test(size=(80, 24)) as pilot:
         plan = app.query_one("#plan-view")
-        await pilot.pause()
+        table = app.query_one("#plan-table")
+        for _ in range(50):
+            await pilot.pause(0.02)
+            if app.focused is table:
+                break
+        assert app.focused is table
         await pilot.press("down", "delete")
         assert [r.name for r in plan.rows] == ["Start", "Mid", "Ponta"]
         await pilot.press("ctrl+r")
         assert [r.name for r in plan.rows] == ["Ponta", "Mid", "Start"]
         await pilot.press("ctrl+z", "ctrl+z")
         assert [r.name for r in plan.rows] == ["Start", "Ushant W", "Mid", "Ponta"]
+        table.move_cursor(row=0)
+        await pilot.pause()
         await pilot.press("ctrl+down")
         assert [r.name for r in plan.rows][:2] == ["Ushant W", "Start"]

@@ -64,6 +64,7 @@ def test_plan_view(snap_compare, voyage_session, size):
         await settle(pilot)
         await pilot.press("down")
         await settle(pilot)
+        assert len(pilot.app.query_one("#plan-view").rows) == 4
 
     assert snap_compare(make_app(voyage_session), terminal_size=size, run_before=before)
 
@@ -71,8 +72,10 @@ def test_plan_view(snap_compare, voyage_session, size):
 @pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
 def test_watch_view(snap_compare, voyage_session, size):
     async def before(pilot):
+        await pilot.pause()
         await pilot.press("f4")
         await settle(pilot, "#watch-view", "state")
+        assert pilot.app.query_one("#views").active == "watch"
 
     assert snap_compare(make_app(voyage_session), terminal_size=size, run_before=before)
 
@@ -80,6 +83,7 @@ def test_watch_view(snap_compare, voyage_session, size):
 @pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
 def test_log_view(snap_compare, voyage_session, size):
     async def before(pilot):
+        await pilot.pause()
         await pilot.press("f3")
         await settle(pilot, "#log-view", "shown")
 
@@ -89,6 +93,7 @@ def test_log_view(snap_compare, voyage_session, size):
 @pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
 def test_review_view(snap_compare, voyage_session, size):
     async def before(pilot):
+        await pilot.pause()
         await pilot.press("f5")
         await settle(pilot, "#review-view", "computed")
 

@@ -114,9 +114,13 @@ def test_the_quick_tail_watch_equals_the_whole_track_watch(sample_plan):
         fixes.append(Fix(t, lat, lon, sog_kn=12.0))
         along += step
         t += timedelta(minutes=10)
-    exact = compute_watch(route, fixes, settings=WatchSettings(exact_max_fixes=10**9))
+    planned = t0 - timedelta(hours=2)  # two hours late away: the schedule counts from this
+    exact = compute_watch(route, fixes, settings=WatchSettings(exact_max_fixes=10**9),
+                          planned_departure_utc=planned)
     quick = compute_watch(route, fixes, settings=WatchSettings(exact_max_fixes=10,
-                                                               tail_s=6 * 3600.0))
+                                                               tail_s=6 * 3600.0),
+                          planned_departure_utc=planned)
+    assert exact.status.delay_s > 3600.0
     assert quick.extra["tail_from_leg"] == 2  # it did take the quick path, from leg 2
     e, q = asdict(exact.status), asdict(quick.status)
     for key in e:
