@@ -143,8 +143,10 @@ class WatchView(Vertical, can_focus=True):
                      f"{st.route_to_go_m / NM_M:.1f} NM")
         grid.add_row(f"ETA {st.to_wp}", f"plan {fmt.utc_time(_t(st.eta_wp_plan_s))}",
                      "by progress", fmt.utc_time(_t(st.eta_wp_smg_s)))
-        grid.add_row(f"ETA {st.destination}", f"plan {fmt.utc_time(_t(st.eta_dest_plan_s))}",
-                     "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
+        if st.to_wp != st.destination or st.leg != st.legs:
+            grid.add_row(f"ETA {st.destination}",
+                         f"plan {fmt.utc_time(_t(st.eta_dest_plan_s))}",
+                         "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
         smg = "–" if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
         grid.add_row(f"SMG/CMG {window_h}", f"{smg} {fmt.course(st.cmg_window)}",
                      "Set/drift", "–" if st.drift_kn is None else
