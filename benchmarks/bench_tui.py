@@ -3,8 +3,8 @@
 Measured in one run on one machine, against a baseline of the same run: the time to open
 the logbook and just load its fix arrays (``Logbook.open`` + ``fix_arrays``), the least any
 view showing the whole voyage must do. Reported, per view, from the key press to the view
-showing its figures (Watch: the latest fix against the plan; Review: every table and plot
-filled), in seconds and as a multiple of the baseline; also the time to the first frame of
+showing its figures (Watch: from the app's start to the latest fix against the plan;
+Review: from switching to it until every table and plot is filled), in seconds and as a multiple of the baseline; also the time to the first frame of
 the app and the longest the UI went without answering (an event-loop probe every 10 ms), so
 a view that freezes the UI shows as such. Targets (issue): each view <= 1 s on 2 cores.
 
@@ -116,17 +116,19 @@ async def run_app(path: Path) -> dict:
         await pilot.pause()
         out["first_frame_s"] = time.perf_counter() - t_start
         watch = app.query_one("#watch-view")
+        # switch views the way the F-keys do (the binding runs this action); Pilot.press
+        # itself waits for the app to go idle, which would be timed along with it
         t0 = time.perf_counter()
-        await pilot.press("f4")
+        await app.action_view("watch")
         while watch.state is None or watch.state.status is None:
             await asyncio.sleep(0.005)
+        await pilot.pause()
         out["watch_s"] = time.perf_counter() - t0
         out["watch_from_start_s"] = time.perf_counter() - t_start
         t0 = time.perf_counter()
-        await pilot.press("f5")
-        while not app.query("#review-view"):  # mounted when first shown
-            await asyncio.sleep(0.005)
+        await app.action_view("review")
         review = app.query_one("#review-view")
+        await pilot.pause()
         out["review_first_paint_s"] = time.perf_counter() - t0
         while not review.computed:
             await asyncio.sleep(0.005)
@@ -159,16 +161,16 @@ def main(argv=None) -> int:
     print(f"logbook: {r['fixes']:,} fixes, 100-waypoint plan")
     print(f"baseline: open + fix_arrays         {base:6.2f} s")
     print(f"app: first frame                   {r['first_frame_s']:6.2f} s")
-    for key, label in (("watch_s", "Watch shown after F4"), ("review_s",
-                                                          "Review filled after F5")):
+    for key, label in (("watch_from_start_s", "Watch figures from app start"),
+                       ("review_s", "Review filled after switching")):
         v = r[key]
         verdict = "met" if v <= 1.0 else "NOT met"
         print(f"{label:34s} {v:6.2f} s  = {v / base:5.1f}x baseline  (target <= 1 s: "
               f"{verdict})")
-    print(f"Review view on screen after F5     {r['review_first_paint_s']:6.2f} s "
+    print(f"Review on screen after switching   {r['review_first_paint_s']:6.2f} s "
           "(its figures follow when the engine is done)")
-    print(f"Watch ready from app start          {r['watch_from_start_s']:6.2f} s "
-          "(the watch starts working at mount, before F4)")
+    print(f"Watch shown after switching         {r['watch_s']:6.2f} s "
+          "(it starts working when the app opens)")
     print(f"longest UI stall (10 ms probe)      {r['longest_stall_s']:6.2f} s")
     if tmp is not None:
         tmp.cleanup()

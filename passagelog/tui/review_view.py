@@ -264,7 +264,8 @@ class ReviewView(Vertical):
     def on_show(self) -> None:
         if not self.loaded:
             self.loaded = True
-            self.action_recompute()
+            # paint the view first, then start the (long) reconciliation
+            self.set_timer(0.05, self.action_recompute)
 
     def action_show_track(self) -> None:
         self.query_one("#review-tabs", TabbedContent).active = "review-track"
