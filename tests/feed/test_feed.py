@@ -250,3 +250,32 @@ def test_unknown_voyage_and_two_sources_are_refused(logbook):
     proc = run(["--stdin", "--udp", "10110", "--voyage", "Live"], logbook, stdin=subprocess.PIPE)
     _out, err = proc.communicate("", timeout=20)
     assert proc.returncode == 2 and "give one source" in err
+
+
+def test_loopback_tcp_server_stream_split_across_packets():
+    """A TCP stream has no message boundaries: sentences cut across sends are joined."""
+    from passagelog.feed.sources import tcp_lines
+
+    server = socket.socket(socket.AF_INET, socket.SOCK_STREAM)
+    server.bind(("127.0.0.1", 0))
+    server.listen(1)
+    port = server.getsockname()[1]
+    payload = "".join(track(5)).encode()
+
+    def serve():
+        conn, _ = server.accept()
+        with conn:
+            for i in range(0, len(payload), 17):  # 17-byte pieces: every sentence is cut
+                conn.sendall(payload[i:i + 17])
+                time.sleep(0.001)
+
+    t = threading.Thread(target=serve)
+    t.start()
+    stop = threading.Event()
+    logged = []
+    stats = Feed(tcp_lines("127.0.0.1", port, stop, poll_s=0.05), logged.append,
+                 LogPolicy(every_s=60)).run()  # ends when the server closes the stream
+    t.join(5.0)
+    server.close()
+    assert stats.fixes_seen == 5 and stats.summary.lines_rejected == 0
+    assert [f.time_utc.minute for f in logged] == [0, 1, 2, 3, 4]
