@@ -11,7 +11,7 @@ import csv
 import json
 import math
 from datetime import datetime, timezone
-from typing import Any, Iterable, Iterator
+from typing import Any, Iterable
 
 import click
 

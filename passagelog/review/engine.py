@@ -59,10 +59,9 @@ import numpy as np
 from passagelog.errors import InputError, PassagelogError
 from passagelog.model import LogEntry, Route
 from passagelog.nav.earth import WGS84, Earth, get_earth
-from passagelog.nav.geodesic import direct, inverse, inverse_np
+from passagelog.nav.geodesic import inverse, inverse_np
 from passagelog.nav.units import KN_MPS
 from passagelog.review.inputs import (
-    FixArrays,
     PlanRevision,
     as_fix_arrays,
     as_revisions,
@@ -230,26 +229,118 @@ def _prev_index(mask: np.ndarray) -> np.ndarray:
     return prev
 
 
-def _dr_currents(f_lat, f_lon, t, heading, stw_kn, prev, ok, earth):
+#: Where both the step to the fix and the run through the water are this short (the bound
+#: shrinks toward the poles, see :func:`_dr_currents`), the DR-to-fix vector is taken in the
+#: tangent plane at the previous fix; it then differs from the rhumb-line construction by
+#: less than this many metres.
+PLANE_CURRENT_TOL_M = 1e-3
+_EARTH_R_M = 6371008.8
+
+
+def _dr_currents(f_lat, f_lon, t, heading, stw_kn, prev, ok, earth, step_d=None,
+                 step_az=None):
     """Set and drift at each fix from the DR of the previous fix (its heading and speed
-    through the water held over the interval) to the fix: arrays (set, drift_kn)."""
+    through the water held over the interval) to the fix: arrays (set, drift_kn).
+
+    The DR is run on the rhumb line of the heading, and set and drift are the rhumb course
+    and distance (over the time) from the DR to the fix, as
+    :func:`passagelog.nav.triangles.set_and_drift` takes them. For a step short enough
+    (``s^2 (1 + 1.5 |tan lat|) < 2 R tol``, s the longer of the step and the run: about 70 m
+    at 45 deg, a GNSS feed of a fix every few seconds) the same vector is taken in the tangent plane
+    at the previous fix, the geodesic step ``step_d``/``step_az`` minus the run along the
+    heading, which differs from the rhumb construction by under :data:`PLANE_CURRENT_TOL_M`
+    and costs no further geodesic work."""
     n = t.size
     set_deg = np.full(n, np.nan)
     drift = np.full(n, np.nan)
-    use = ok.copy()
-    p = prev[use]
-    i = np.flatnonzero(use)
+    i = np.flatnonzero(ok)
     if i.size == 0:
         return set_deg, drift
+    p = prev[i]
     dt = t[i] - t[p]
     run = stw_kn[p] * KN_MPS * dt
-    from passagelog.nav import rhumb
+    plane = np.zeros(i.size, bool)
+    if step_d is not None:
+        d = step_d[i]
+        longest = np.maximum(np.where(np.isfinite(d), d, np.inf), run)
+        slope = 1.0 + 1.5 * np.abs(np.tan(np.radians(f_lat[p])))
+        bound = 2.0 * _EARTH_R_M * PLANE_CURRENT_TOL_M
+        plane = (p == i - 1) & (longest * longest * slope < bound)
+    if plane.any():
+        ip = i[plane]
+        az = np.radians(step_az[ip])
+        hd = np.radians(heading[p[plane]])
+        east = step_d[ip] * np.sin(az) - run[plane] * np.sin(hd)
+        north = step_d[ip] * np.cos(az) - run[plane] * np.cos(hd)
+        dist = np.hypot(east, north)
+        drift[ip] = dist / dt[plane] / KN_MPS
+        set_deg[ip] = np.where(dist > 0.0, np.mod(np.degrees(np.arctan2(east, north)), 360.0),
+                               np.nan)
+    rest = ~plane
+    if rest.any():
+        from passagelog.nav import rhumb
 
-    dr_lat, dr_lon = rhumb.rhumb_direct_np(f_lat[p], f_lon[p], heading[p], run, earth)
-    dist, course = rhumb.rhumb_inverse_np(dr_lat, dr_lon, f_lat[i], f_lon[i], earth)
-    drift[i] = dist / dt / KN_MPS
-    set_deg[i] = np.where(dist > 0.0, np.mod(course, 360.0), np.nan)
+        ir, pr = i[rest], p[rest]
+        dr_lat, dr_lon = rhumb.rhumb_direct_np(f_lat[pr], f_lon[pr], heading[pr], run[rest],
+                                               earth)
+        dist, course = rhumb.rhumb_inverse_np(dr_lat, dr_lon, f_lat[ir], f_lon[ir], earth)
+        drift[ir] = dist / dt[rest] / KN_MPS
+        set_deg[ir] = np.where(dist > 0.0, np.mod(course, 360.0), np.nan)
+    set_deg[set_deg == 360.0] = 0.0
     return set_deg, drift
+
+
+def _made_good_dep(lat, lon, t, counting, d0, earth):
+    """Made good from the departure fix (the first fix that counts) for every fix from
+    ``d0`` on: (dep_fix, cmg_dep, dmg_dep, smg_dep_kn)."""
+    n = t.size
+    cmg_dep = np.full(n, np.nan)
+    dmg_dep = np.full(n, np.nan)
+    smg_dep = np.full(n, np.nan)
+    cand = np.flatnonzero(counting)
+    if not cand.size:
+        return None, cmg_dep, dmg_dep, smg_dep
+    dep_fix = int(cand[0])
+    after = np.arange(max(dep_fix, d0), n)
+    d, a1, _ = inverse_np(lat[dep_fix], lon[dep_fix], lat[after], lon[after], earth)
+    el = t[after] - t[dep_fix]
+    dmg_dep[after] = d
+    cmg_dep[after] = np.where(d > 0.0, a1, np.nan)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        smg_dep[after] = np.where(el > 0, d / el / KN_MPS, np.nan)
+    return dep_fix, cmg_dep, dmg_dep, smg_dep
+
+
+def _window_smg(lat, lon, t, counting, d0, window_s, earth):
+    """SMG over the window, from the first fix that counts at or after t - window (and not
+    before the departure fix), for every fix from ``d0`` on."""
+    n = t.size
+    smg_win = np.full(n, np.nan)
+    cand = np.flatnonzero(counting)
+    if not cand.size:
+        return smg_win
+    after = np.arange(max(int(cand[0]), d0), n)
+    j = np.minimum(np.searchsorted(t[cand], t[after] - window_s, side="left"), cand.size - 1)
+    w0 = cand[j]
+    ok = (w0 < after) & (t[w0] < t[after])
+    if ok.any():
+        aa = after[ok]
+        ww = w0[ok]
+        d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
+        smg_win[aa] = d / (t[aa] - t[ww]) / KN_MPS
+    return smg_win
+
+
+def _split_inverse(pool, lat1, lon1, lat2, lon2, earth):
+    """``inverse_np`` over two threads for a long batch (PROJ's C code runs without the
+    GIL): the first half in ``pool``, the second here."""
+    n = lat2.size
+    if n < 50000:
+        return inverse_np(lat1, lon1, lat2, lon2, earth)
+    h = n // 2
+    first = pool.submit(inverse_np, lat1[:h], lon1[:h], lat2[:h], lon2[:h], earth)
+    second = inverse_np(lat1[h:], lon1[h:], lat2[h:], lon2[h:], earth)
+    return tuple(np.concatenate([a, b]) for a, b in zip(first.result(), second))
 
 
 def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fixes: Any, *,
@@ -320,6 +411,21 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     d0 = int(np.searchsorted(t, detail_s, side="left")) if detail_s is not None else 0
 
     # ---------------------------------------------------------------- suspects
+    from concurrent.futures import ThreadPoolExecutor
+
+    # a second thread for work that does not wait on the leg state machine
+    pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="review")
+    try:
+        return _reconcile_fixes(**locals())
+    finally:
+        pool.shutdown(wait=True)
+
+
+def _reconcile_fixes(*, plans, revisions, clocks, entries, earth, raw, valid, order, f, n, t,
+                     lat, lon, d0, detail_s, pool, departure_utc, planned_departure_utc,
+                     arrival_utc, window_s, gap_s, include_suspect, max_speed_kn, schedule,
+                     **_unused) -> Review:
+    """:func:`reconcile` once the fixes are in time order."""
     suspect = f.suspect.copy()
     reason = np.where(suspect, "logbook", "")
     implied = np.full(n, np.nan)
@@ -327,7 +433,8 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     step_az = np.full(n, np.nan)
     s0 = max(d0, 1)
     if n > s0:
-        d, az, _ = inverse_np(lat[s0 - 1:-1], lon[s0 - 1:-1], lat[s0:], lon[s0:], earth)
+        d, az, _ = _split_inverse(pool, lat[s0 - 1:-1], lon[s0 - 1:-1], lat[s0:], lon[s0:],
+                                  earth)
         step_d[s0:] = d
         step_az[s0:] = az
         dt = np.diff(t[s0 - 1:])
@@ -374,6 +481,27 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
             i = nxt
     good = ~suspect | include_suspect
 
+    # set and drift need only the fixes and the previous good fix of each: start them now
+    # in a second thread (numpy lets go of the GIL), while the state machine runs
+    prev = _prev_index(good)
+    has_prev = (prev >= 0) & (np.arange(n) >= d0)
+    pp0 = np.maximum(prev, 0)
+    cur_ok = (has_prev & good & np.isfinite(f.heading[pp0]) & np.isfinite(f.stw_kn[pp0])
+              & (t - t[pp0] > 0) & (t - t[pp0] <= gap_s))
+    currents = None
+    if cur_ok.any():
+        currents = pool.submit(_dr_currents, lat, lon, t, f.heading, f.stw_kn, prev, cur_ok,
+                               earth, step_d, step_az)
+    return _reconcile_rest(**locals())
+
+
+def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, order, f, n, t,
+                    lat, lon, d0, detail_s, suspect, reason, implied, step_d, step_az, good,
+                    prev, has_prev, currents, pool, departure_utc, planned_departure_utc,
+                    arrival_utc, window_s, gap_s, include_suspect, max_speed_kn, schedule,
+                    **_unused) -> Review:
+    """The rest of :func:`reconcile`, once the fixes are in order and the suspects known."""
+
     # ---------------------------------------------------------------- departure, arrival
     dep_s = to_seconds(departure_utc, "departure time")
     if dep_s is None:
@@ -389,6 +517,10 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         phase[t < dep_s] = BEFORE_DEPARTURE
     if arr_given is not None:
         phase[t > arr_given] = ARRIVED
+    # made good from the departure: in the second thread (the window SMG comes after the
+    # offsets, in this one)
+    counting_made_good = good & (phase != BEFORE_DEPARTURE)
+    made_good = pool.submit(_made_good_dep, lat, lon, t, counting_made_good, d0, earth)
 
     # ---------------------------------------------------------------- state machine
     rev_starts = np.array([r.from_s for r in revisions])
@@ -514,12 +646,9 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     xtl = np.where(np.isfinite(limit), limit, np.nan)
 
     # ---------------------------------------------------------------- made good
-    prev = _prev_index(good)
-    has_prev = prev >= 0
     cmg_prev = np.full(n, np.nan)
     smg_prev = np.full(n, np.nan)
     dist_prev = np.full(n, np.nan)
-    has_prev &= np.arange(n) >= d0
     if has_prev.any():
         ii = np.flatnonzero(has_prev)
         pp = prev[ii]
@@ -536,33 +665,8 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         cmg_prev[ii] = np.where(d > 0.0, a1, np.nan)
         with np.errstate(divide="ignore", invalid="ignore"):
             smg_prev[ii] = np.where(dtp > 0, d / dtp / KN_MPS, np.nan)
-    dep_fix = None
-    cmg_dep = np.full(n, np.nan)
-    dmg_dep = np.full(n, np.nan)
-    smg_dep = np.full(n, np.nan)
-    smg_win = np.full(n, np.nan)
-    cand = np.flatnonzero(good & (phase != BEFORE_DEPARTURE))
-    if cand.size:
-        dep_fix = int(cand[0])
-        after = np.arange(max(dep_fix, d0), n)
-        d, a1, _ = inverse_np(lat[dep_fix], lon[dep_fix], lat[after], lon[after], earth)
-        el = t[after] - t[dep_fix]
-        dmg_dep[after] = d
-        cmg_dep[after] = np.where(d > 0.0, a1, np.nan)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            smg_dep[after] = np.where(el > 0, d / el / KN_MPS, np.nan)
-        # window: from the first good fix at or after t - window (not before departure)
-        gi = cand
-        gt = t[gi]
-        j = np.searchsorted(gt, t[after] - window_s, side="left")
-        j = np.minimum(j, gi.size - 1)
-        w0 = gi[j]
-        ok = (w0 < after) & (t[w0] < t[after])
-        if ok.any():
-            aa = after[ok]
-            ww = w0[ok]
-            d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
-            smg_win[aa] = d / (t[aa] - t[ww]) / KN_MPS
+    smg_win = _window_smg(lat, lon, t, counting_made_good, d0, window_s, earth)
+    dep_fix, cmg_dep, dmg_dep, smg_dep = made_good.result()
     # ETAs
     v = speed * KN_MPS
     tg = np.maximum(leg_to_go, 0.0)
@@ -592,11 +696,11 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
         if sel.any() and fin.sum() >= 2:
             done = np.clip(rp.total - route_to_go[sel], 0.0, rp.total)
             delay[sel] = t[sel] - np.interp(done, rp.wp_cum[fin], sch[fin])
-    # set and drift
-    cur_ok = (has_prev & good & np.isfinite(f.heading[np.maximum(prev, 0)])
-              & np.isfinite(f.stw_kn[np.maximum(prev, 0)]))
-    cur_ok &= (t - t[np.maximum(prev, 0)] > 0) & (t - t[np.maximum(prev, 0)] <= gap_s)
-    set_deg, drift = _dr_currents(lat, lon, t, f.heading, f.stw_kn, prev, cur_ok, earth)
+    # set and drift (computed in the second thread)
+    if currents is not None:
+        set_deg, drift = currents.result()
+    else:
+        set_deg, drift = np.full(n, np.nan), np.full(n, np.nan)
 
     def ro(x):
         x = np.ascontiguousarray(x)
@@ -699,7 +803,7 @@ def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
             seg = make_leg(float(fr.lat[j]), float(fr.lon[j]), float(fr.lat[i]),
                            float(fr.lon[i]), "great-circle", earth=earth)
             x, a = seg.offset(float(w_lat), float(w_lon))
-        except Exception:  # a zero-length step or a foot that is not defined: ends only
+        except PassagelogError:  # a zero-length step, or a foot that is not defined
             return best
         if 0.0 <= a <= seg.distance_m:
             best = min(best, abs(float(x)))

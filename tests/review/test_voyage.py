@@ -262,3 +262,58 @@ def test_a_fix_built_at_a_known_offset_is_read_back(lat, lon, course, length_km,
     if abs(abs(xte) - 2500.0) > OFFSET_TOL_M:  # on the limit itself either answer is fair
         assert bool(fx.inside_xtl[1]) == (abs(xte) < 2500.0)
     assert isinstance(route, Route) and math.isfinite(fx.route_to_go_m[1])
+
+
+@settings(max_examples=60, deadline=None)
+@given(lat=st.floats(-75, 75), lon=st.floats(-180, 179.99), heading=st.floats(0, 359.99),
+       stw=st.floats(0.5, 30), set_=st.floats(0, 359.99), drift=st.floats(0.05, 4),
+       dt=st.floats(1.0, 8.0))
+def test_set_and_drift_of_a_fast_feed_are_those_built_in(lat, lon, heading, stw, set_, drift,
+                                                         dt):
+    """A fix every few seconds: the DR of the last fix (rhumb line of its heading at its
+    STW) carried on by a current of known set and drift (rhumb line again) gives the fix, so
+    set and drift are known; the engine's short-step path must find them to within its
+    1 mm bound on the DR-to-fix vector."""
+    from passagelog.nav.rhumb import rhumb_direct
+
+    KN_ = 1852.0 / 3600.0
+    dr = rhumb_direct(lat, lon, heading, stw * KN_ * dt)
+    fix = rhumb_direct(dr[0], dr[1], set_, drift * KN_ * dt)
+    route = syn.route([(lat, lon), (fix[0] + 0.5 if lat < 0 else fix[0] - 0.5, fix[1])])
+    cols = syn.columns([syn.T0, syn.T0 + dt], [lat, fix[0]], [lon, fix[1]],
+                       heading=[heading, heading], stw_kn=[stw, stw])
+    fx = reconcile(route, cols).fixes
+    tol_kn = 1e-3 / dt / KN_
+    assert abs(fx.drift_kn[1] - drift) < tol_kn
+    tol_deg = math.degrees(1e-3 / (drift * KN_ * dt))
+    assert abs((fx.set[1] - set_ + 180.0) % 360.0 - 180.0) < tol_deg
+
+
+@pytest.mark.parametrize("lat", [0.0, 45.0, -70.0, 78.0])
+@pytest.mark.parametrize("stw, dt", [(10.0, 2.0), (20.0, 6.0), (29.0, 8.0)])
+def test_set_and_drift_over_short_steps_at_every_latitude(lat, stw, dt):
+    """The same construction over a grid of headings and sets, up to 120 m steps at 78 deg
+    (where the tangent plane would be millimetres out): the engine switches to the rhumb
+    construction where it must, and is within 1 mm everywhere."""
+    from passagelog.nav.rhumb import rhumb_direct
+
+    KN_ = 1852.0 / 3600.0
+    heads = np.arange(0.0, 360.0, 30.0)
+    sets = (heads * 7.0 + 45.0) % 360.0
+    lats, lons, hdg = [], [], []
+    for h, s in zip(heads, sets):
+        dr = rhumb_direct(lat, 20.0, h, stw * KN_ * dt)
+        fix = rhumb_direct(dr[0], dr[1], s, 2.0 * KN_ * dt)
+        lats += [lat, fix[0]]
+        lons += [20.0, fix[1]]
+        hdg += [h, h]
+    n = len(lats)
+    times = syn.T0 + np.arange(n) * dt  # each pair is its own step; between pairs a jump back
+    route = syn.route([(lat, 20.0), (lat + (0.5 if lat < 0 else -0.5), 20.0)])
+    cols = syn.columns(times, lats, lons, heading=hdg, stw_kn=np.full(n, stw))
+    fx = reconcile(route, cols, gap_s=3600.0).fixes
+    for k, s in enumerate(sets):
+        i = 2 * k + 1
+        assert abs(fx.drift_kn[i] - 2.0) < 1e-3 / dt / KN_, (k, fx.drift_kn[i])
+        assert abs((fx.set[i] - s + 180.0) % 360.0 - 180.0) < math.degrees(
+            1e-3 / (2.0 * KN_ * dt)), (k, fx.set[i])
