@@ -311,7 +311,7 @@ def _made_good_dep(lat, lon, t, counting, d0, earth):
     return dep_fix, cmg_dep, dmg_dep, smg_dep
 
 
-def _window_smg(lat, lon, t, counting, d0, window_s, earth):
+def _window_smg(lat, lon, t, counting, d0, window_s, earth, pool=None):
     """SMG over the window, from the first fix that counts at or after t - window (and not
     before the departure fix), for every fix from ``d0`` on."""
     n = t.size
@@ -326,7 +326,10 @@ def _window_smg(lat, lon, t, counting, d0, window_s, earth):
     if ok.any():
         aa = after[ok]
         ww = w0[ok]
-        d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
+        if pool is None:
+            d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
+        else:
+            d, _, _ = _split_inverse(pool, lat[ww], lon[ww], lat[aa], lon[aa], earth)
         smg_win[aa] = d / (t[aa] - t[ww]) / KN_MPS
     return smg_win
 
@@ -611,15 +614,19 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         cuts = np.flatnonzero(np.diff(key)) + 1
         starts = np.concatenate([[0], cuts])
         ends = np.concatenate([cuts, [n]])
-        for a, b in zip(starts.tolist(), ends.tolist()):
+        # every other run of fixes on one leg goes to the second thread
+        pending = []
+        for m, (a, b) in enumerate(zip(starts.tolist(), ends.tolist())):
             if b <= d0:
                 continue
             a = max(a, d0)
-            rp = plans[int(rev_of[a])]
-            leg = rp.legs[int(leg0[a])]
-            x, al = leg.offsets_np(lat[a:b], lon[a:b])
-            xte[a:b] = x
-            along[a:b] = al
+            leg = plans[int(rev_of[a])].legs[int(leg0[a])]
+            if m % 2:
+                pending.append((a, b, pool.submit(leg.offsets_np, lat[a:b], lon[a:b])))
+            else:
+                xte[a:b], along[a:b] = leg.offsets_np(lat[a:b], lon[a:b])
+        for a, b, job in pending:
+            xte[a:b], along[a:b] = job.result()
     length = np.zeros(n)
     cum_start = np.zeros(n)
     total = np.zeros(n)
@@ -665,7 +672,7 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         cmg_prev[ii] = np.where(d > 0.0, a1, np.nan)
         with np.errstate(divide="ignore", invalid="ignore"):
             smg_prev[ii] = np.where(dtp > 0, d / dtp / KN_MPS, np.nan)
-    smg_win = _window_smg(lat, lon, t, counting_made_good, d0, window_s, earth)
+    smg_win = _window_smg(lat, lon, t, counting_made_good, d0, window_s, earth, pool)
     dep_fix, cmg_dep, dmg_dep, smg_dep = made_good.result()
     # ETAs
     v = speed * KN_MPS
