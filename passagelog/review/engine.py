@@ -402,9 +402,13 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     raw = as_fix_arrays(fixes)
     valid = (np.isfinite(raw.time_s) & np.isfinite(raw.lat) & np.isfinite(raw.lon)
              & (np.abs(raw.lat) <= 90.0))
-    order = np.flatnonzero(valid)
-    order = order[np.argsort(raw.time_s[order], kind="stable")]
-    f = raw.take(order)
+    if valid.all() and (raw.time_s.size < 2 or bool(np.all(np.diff(raw.time_s) >= 0))):
+        order = np.arange(raw.time_s.size)  # already in time order (a logbook's arrays)
+        f = raw
+    else:
+        order = np.flatnonzero(valid)
+        order = order[np.argsort(raw.time_s[order], kind="stable")]
+        f = raw.take(order)
     n = len(f)
     t = f.time_s
     lat = f.lat
