@@ -29,7 +29,7 @@ from passagelog.nav.zonetime import parse_time_utc  # noqa: E402
 
 FAST = settings(max_examples=300, deadline=None,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
-LONG = settings(max_examples=5_000, deadline=None,
+LONG = settings(max_examples=5_000, deadline=None, derandomize=True,
                 suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
 
 #: seeds of the mutation loops (the slow run uses SEEDS_SLOW after SEEDS_FAST)
@@ -308,7 +308,7 @@ def test_nmea_lines_long(lines):
 
 
 @pytest.mark.slow
-@settings(max_examples=5_000, deadline=None,
+@settings(max_examples=5_000, deadline=None, derandomize=True,
           suppress_health_check=[HealthCheck.too_slow, HealthCheck.function_scoped_fixture])
 @given(routes(), st.sampled_from(["rtz", "gpx", "route-csv"]))
 def test_written_route_reads_back_long(tmp_path, route, fmt):
