@@ -94,7 +94,7 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
         if rejected:
             click.echo(f"{fixes_file}: {len(fixes)} fixes read, {rejected} lines rejected",
                        err=True)
-        zd_minutes = parse_zd(zd) if zd else zd_from_lon(route.waypoints[0].lon)
+        zd_minutes = parse_zd(zd) if zd else 60 * zd_from_lon(route.waypoints[0].lon)
         return {
             "plan": route, "fixes": fixes, "entries": _clock_changes(clock_changes),
             "zd_minutes": zd_minutes, "departure_utc": _time(departure, "--departure"),

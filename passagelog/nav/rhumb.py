@@ -6,8 +6,8 @@ On the Mercator chart a rhumb line is straight. With the isometric latitude ``ps
 chart's northing and the longitude ``lambda`` (radians) as its easting, a rhumb line of
 course ``alpha`` obeys ``tan(alpha) = d_lambda / d_psi`` (Bowditch, NGA Pub. 9, "Mercator
 sailing": ``tan C = DLo / m``, ``m`` the difference of meridional parts), and its length is
-the difference of meridian arc divided by ``cos(alpha)`` (Bennett 1996, "Rhumb-line navigation
-on an ellipsoid", Journal of Navigation 49(1):97-108).
+the difference of meridian arc divided by ``cos(alpha)`` (G. G. Bennett 1996, "Practical rhumb
+line calculations on the spheroid", Journal of Navigation 49(1):112-119).
 
 That quotient is 0/0 on due and nearly east-west courses. Following Karney ("The rhumb
 line", GeographicLib documentation, and his ``Rhumb`` class, 2014), we write the length as
