@@ -3,8 +3,10 @@
 Every table has rows with stable keys (:data:`TABLE_COLUMNS`), for the CLI, the reports and
 scripts. Times in rows are ISO 8601 UTC text with ``Z``; distances metres, speeds knots,
 courses degrees true; a missing value is ``None`` (never NaN). Legs and waypoints are
-numbered from 1 in rows (leg k runs from waypoint k to waypoint k+1); revisions from 0 (the
-plan's first revision) unless the route carries its own revision number.
+numbered from 1 in rows (leg k runs from waypoint k to waypoint k+1). In rows a revision is
+the route's own number (a logbook plan's revision, from 1), or for a route without one its
+place in the sequence of routes in force, from 1; the result objects keep the 0-based index
+into ``Review.routes``.
 """
 
 from __future__ import annotations
@@ -404,6 +406,13 @@ class Review:
     invalid_fixes: int = 0
     detail_from_s: float | None = None  # per-fix figures only from this time (watch mode)
 
+    @property
+    def revision_numbers(self) -> tuple[int, ...]:
+        """The number rows give each route in :attr:`routes`: its own revision number, else
+        its 1-based place in the sequence."""
+        return tuple(r.revision if r.revision is not None else i + 1
+                     for i, r in enumerate(self.routes))
+
     # -------------------------------------------------------------------------- tables
     def iter_rows(self, table: str) -> Iterator[dict]:
         """The rows of ``table`` (one of :data:`TABLES`) as dicts with the keys of
@@ -420,8 +429,12 @@ class Review:
             from passagelog.errors import InputError
 
             raise InputError(f"table {table!r} is not known; use one of: {', '.join(TABLES)}")
+        numbers = self.revision_numbers
         for item in items:
-            yield item.row()
+            row = item.row()
+            if row.get("revision") is not None:
+                row["revision"] = numbers[row["revision"]]
+            yield row
 
     def rows(self, table: str) -> list[dict]:
         """All rows of ``table`` as a list (see :meth:`iter_rows`)."""
@@ -433,6 +446,7 @@ class Review:
         the same values :meth:`iter_rows` gives, for writers that go column by column."""
         fx = self.fixes
         names = [tuple(w.name for w in r.waypoints) for r in self.routes]
+        numbers = self.revision_numbers
         time_cols = {"time_utc": "time_s", "eta_wp_plan_utc": "eta_wp_plan_s",
                      "eta_dest_plan_utc": "eta_dest_plan_s", "eta_wp_smg_utc": "eta_wp_smg_s",
                      "eta_dest_smg_utc": "eta_dest_smg_s"}
@@ -455,7 +469,7 @@ class Review:
             rev = fx.revision[a:b].tolist()
             leg = fx.leg[a:b].tolist()
             cols["leg"] = leg
-            cols["revision"] = rev
+            cols["revision"] = [numbers[r] for r in rev]
             cols["inside_xtl"] = fx.inside_xtl[a:b].tolist()
             cols["phase"] = [PHASES[p] for p in fx.phase[a:b].tolist()]
             cols["suspect"] = fx.suspect[a:b].tolist()

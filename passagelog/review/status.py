@@ -22,6 +22,7 @@ class Status:
     ``window_used_s`` says, early in the voyage or after suspect fixes); ``set``/
     ``drift_kn`` the vector mean of the currents found over the same window (None where
     heading and speed through the water were not logged). Times are float seconds (UTC).
+    ``revision`` indexes ``Review.routes``; ``revision_number`` is the number rows give it.
     """
 
     time_s: float
@@ -55,11 +56,13 @@ class Status:
     set: float | None
     drift_kn: float | None
     destination: str
+    revision_number: int | None = None  # as rows number it (see Review.revision_numbers)
 
     def row(self) -> dict:
         return {
             "time_utc": iso_z(self.time_s), "lat": self.lat, "lon": self.lon,
-            "phase": self.phase, "suspect": self.suspect, "revision": self.revision,
+            "phase": self.phase, "suspect": self.suspect,
+            "revision": self.revision if self.revision_number is None else self.revision_number,
             "leg": self.leg, "legs": self.legs, "from_wp": self.from_wp, "to_wp": self.to_wp,
             "xte_m": self.xte_m, "side": self.side, "xtl_m": self.xtl_m,
             "inside_xtl": self.inside_xtl, "along_m": self.along_m,
@@ -115,7 +118,8 @@ def status_of(review: Review, row: int = -1) -> Status:
     x = float(fr.xte_m[i])
     return Status(
         time_s=float(t[i]), lat=float(fr.lat[i]), lon=float(fr.lon[i]),
-        phase=PHASES[int(fr.phase[i])], suspect=bool(fr.suspect[i]), revision=r, leg=leg,
+        phase=PHASES[int(fr.phase[i])], suspect=bool(fr.suspect[i]),
+        revision=r, revision_number=review.revision_numbers[r], leg=leg,
         legs=len(route.legs), from_wp=names[leg - 1], to_wp=names[leg], xte_m=x,
         side="R" if x > 0 else "L" if x < 0 else "", xtl_m=_f(fr.xtl_m[i]),
         inside_xtl=bool(fr.inside_xtl[i]), along_m=float(fr.along_m[i]),

@@ -208,8 +208,9 @@ def test_plan_revision_mid_voyage(matched):
     got = [(p.revision, p.name) for p in rv.passages]
     assert got == [(0, "B"), (1, "X"), (1, "Y")]
     assert rv.arrival_s == cols["time_s"][-1]
-    assert {(r["revision"], r["leg"]) for r in rv.rows("legs")} == {(0, 1), (0, 2), (1, 1),
-                                                                   (1, 2)}
+    # rows number the routes from 1 where they carry no revision of their own
+    assert {(r["revision"], r["leg"]) for r in rv.rows("legs")} == {(1, 1), (1, 2), (2, 1),
+                                                                   (2, 2)}
 
 
 # ----------------------------------------------------------------------- the antimeridian
