@@ -978,6 +978,102 @@ class Logbook:
         return {"fixes": fixes, "fixes_current": fixes - corrected, "suspect": suspect,
                 "entries": entries, "entries_current": entries - ecorrected}
 
+    # ----- fix records a page at a time (keyset reads for a list of a whole voyage) --------
+    # Every record, corrected originals included, in time order (ties by id); each read
+    # costs the rows it returns, not the size of the voyage (index fix_voyage_time).
+
+    @staticmethod
+    def _page_limit(limit: Any) -> int:
+        if isinstance(limit, bool) or not isinstance(limit, int) or limit < 1:
+            raise InputError(f"page size {limit!r} must be a whole number of at least 1")
+        return limit
+
+    def _page_anchor(self, vid: int, fix_id: Any) -> tuple[float, int]:
+        if isinstance(fix_id, bool) or not isinstance(fix_id, int):
+            raise InputError(f"fix id {fix_id!r} must be a whole number")
+        rows = self._q("SELECT time_s, fix_id FROM fix WHERE fix_id = ? AND voyage_id = ?",
+                       (fix_id, vid))
+        if not rows:
+            raise NotFoundError(f"fix {fix_id} is not in the logbook for this voyage")
+        return rows[0]
+
+    def fix_record_count(self, voyage: Voyage | int | str) -> int:
+        """How many fix records the voyage has (corrected originals included)."""
+        with self._reading():
+            vid = self._voyage_row(voyage)[0]
+            return self._q("SELECT count(*) FROM fix WHERE voyage_id = ?", (vid,))[0][0]
+
+    def fix_records_after(self, voyage: Voyage | int | str, after_id: int | None = None, *,
+                          limit: int) -> list[Fix]:
+        """At most ``limit`` fix records that follow record ``after_id`` in time order
+        (from the voyage's first record when ``after_id`` is None), in time order."""
+        limit = self._page_limit(limit)
+        cols = ", ".join(_FIX_COLS)
+        with self._reading():
+            vid = self._voyage_row(voyage)[0]
+            if after_id is None:
+                rows = self._q(f"SELECT {cols} FROM fix WHERE voyage_id = ? "
+                               "ORDER BY time_s, fix_id LIMIT ?", (vid, limit))
+            else:
+                t, fid = self._page_anchor(vid, after_id)
+                rows = self._q(f"SELECT {cols} FROM fix WHERE voyage_id = ? AND "
+                               "(time_s, fix_id) > (?, ?) ORDER BY time_s, fix_id LIMIT ?",
+                               (vid, t, fid, limit))
+        return [self._fix_of(r) for r in rows]
+
+    def fix_records_before(self, voyage: Voyage | int | str, before_id: int | None = None,
+                           *, limit: int) -> list[Fix]:
+        """At most ``limit`` fix records that come just before record ``before_id`` in time
+        order (the voyage's last ones when ``before_id`` is None), in time order."""
+        limit = self._page_limit(limit)
+        cols = ", ".join(_FIX_COLS)
+        with self._reading():
+            vid = self._voyage_row(voyage)[0]
+            if before_id is None:
+                rows = self._q(f"SELECT {cols} FROM fix WHERE voyage_id = ? "
+                               "ORDER BY time_s DESC, fix_id DESC LIMIT ?", (vid, limit))
+            else:
+                t, fid = self._page_anchor(vid, before_id)
+                rows = self._q(f"SELECT {cols} FROM fix WHERE voyage_id = ? AND "
+                               "(time_s, fix_id) < (?, ?) ORDER BY time_s DESC, fix_id DESC "
+                               "LIMIT ?", (vid, t, fid, limit))
+        return [self._fix_of(r) for r in reversed(rows)]
+
+    def fix_records_from(self, voyage: Voyage | int | str, when: datetime, *,
+                         limit: int) -> list[Fix]:
+        """At most ``limit`` fix records at or after ``when`` (aware UTC), in time order."""
+        check_utc("page", "time", when, optional=False)
+        limit = self._page_limit(limit)
+        with self._reading():
+            vid = self._voyage_row(voyage)[0]
+            rows = self._q(f"SELECT {', '.join(_FIX_COLS)} FROM fix WHERE voyage_id = ? AND "
+                           "time_s >= ? ORDER BY time_s, fix_id LIMIT ?",
+                           (vid, when.timestamp(), limit))
+        return [self._fix_of(r) for r in rows]
+
+    def fix_record_rank(self, voyage: Voyage | int | str, fix_id: int) -> int:
+        """How many of the voyage's fix records come before record ``fix_id`` in time order
+        (its 0-based place in the list; counts index entries, so cheap but not free)."""
+        with self._reading():
+            vid = self._voyage_row(voyage)[0]
+            t, fid = self._page_anchor(vid, fix_id)
+            return self._q("SELECT count(*) FROM fix WHERE voyage_id = ? AND "
+                           "(time_s, fix_id) < (?, ?)", (vid, t, fid))[0][0]
+
+    def corrections_of(self, fix_ids: Sequence[int]) -> dict[int, int]:
+        """For each of ``fix_ids`` that a correction superseded: the correcting fix's id."""
+        ids = [int(i) for i in fix_ids]
+        out: dict[int, int] = {}
+        with self._reading():
+            for start in range(0, len(ids), 500):
+                part = ids[start:start + 500]
+                marks = ", ".join("?" * len(part))
+                for old, new in self._q(
+                        "SELECT supersedes, fix_id FROM fix INDEXED BY fix_supersedes "
+                        f"WHERE supersedes IN ({marks})", part):
+                    out[old] = new
+        return out
+
     # ----- log entries --------------------------------------------------------------------
 
     def add_entry(self, voyage: Voyage | int | str, entry: LogEntry) -> LogEntry:

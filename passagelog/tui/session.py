@@ -150,6 +150,25 @@ class Session:
         book = self.logbook
         return (book.data_version(), book.latest_fix_id())
 
+    # --- fix records a page at a time (the Log view's list; keyset reads) ---
+    def fix_record_count(self) -> int:
+        return self.logbook.fix_record_count(self._vid()) if self.voyage else 0
+
+    def fix_records_after(self, after_id: int | None = None, *, limit: int) -> list[Fix]:
+        return self.logbook.fix_records_after(self._vid(), after_id, limit=limit)
+
+    def fix_records_before(self, before_id: int | None = None, *, limit: int) -> list[Fix]:
+        return self.logbook.fix_records_before(self._vid(), before_id, limit=limit)
+
+    def fix_records_from(self, when: datetime, *, limit: int) -> list[Fix]:
+        return self.logbook.fix_records_from(self._vid(), when, limit=limit)
+
+    def fix_record_rank(self, fix_id: int) -> int:
+        return self.logbook.fix_record_rank(self._vid(), fix_id)
+
+    def corrections_of(self, fix_ids) -> dict[int, int]:
+        return self.logbook.corrections_of(fix_ids)
+
     # --- log entries ---
     def entries(self) -> list[LogEntry]:
         return list(self.logbook.entries(self._vid())) if self.voyage else []
