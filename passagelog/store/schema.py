@@ -11,7 +11,10 @@ Append-only tables (fixes, log entries, plan revisions with their waypoints and 
 plan assignments, imports) carry triggers that refuse UPDATE and DELETE. ``chain_head`` is
 updated by the logbook at every append and refuses DELETE. ``fix_block`` is a derived cache
 of the fix columns as packed arrays (fast loading); it is rewritten freely and checked against
-the fix records by ``verify``.
+the fix records by ``verify``. ``derived_result`` (version 2) keeps results computed from a
+voyage's records (the review shown by the terminal UI) with the content stamp of the records
+they were computed from; it is rewritten freely, never trusted when the stamp differs, and
+emptied by ``verify --rebuild-cache``.
 """
 
 from __future__ import annotations
@@ -214,9 +217,22 @@ BEGIN SELECT RAISE(ABORT, '{table} records are append-only: DELETE refused; reco
 APPEND_ONLY_TABLES = ("fix", "entry", "plan_revision", "plan_point", "plan_schedule",
                       "plan_assignment", "import_record")
 
+#: The SQL of schema version 2: derived results kept with the stamp of their inputs.
+V2 = r"""
+CREATE TABLE derived_result (
+    voyage_id INTEGER NOT NULL REFERENCES voyage (voyage_id),
+    kind TEXT NOT NULL CHECK (length(kind) > 0),
+    stamp TEXT NOT NULL,
+    written_utc TEXT NOT NULL,
+    data BLOB NOT NULL,
+    PRIMARY KEY (voyage_id, kind)
+);
+"""
+
 #: version -> SQL taking a logbook from ``version - 1`` to ``version``.
 MIGRATIONS: dict[int, str] = {
     1: V1,
+    2: V2,
 }
 
 #: The schema version this release writes.

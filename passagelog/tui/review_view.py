@@ -2,8 +2,11 @@
 
 Per-leg figures, waypoint passages, deviation episodes (spells outside the cross-track
 limit), noon figures, gaps, and two plots: the track against the plan, and XTE over time
-with the limits. The reconciliation runs in a worker thread the first time the view is
-shown and again on Ctrl+L (or when the logbook has changed since).
+with the limits. The reconciliation runs in a worker thread; what the view shows of it is kept
+in the logbook's derived results (:mod:`passagelog.tui.review_data`), so opening the logbook
+again shows it at once. Each time the view is shown it checks the logbook's content stamp:
+a kept review that is no longer current is shown marked as such while the voyage is
+reconciled again; Ctrl+L reconciles again regardless.
 """
 
 from __future__ import annotations
@@ -21,8 +24,10 @@ from textual.widgets import DataTable, Static, TabbedContent, TabPane
 
 from passagelog.errors import PassagelogError
 from passagelog.nav.units import NM_M
+from passagelog.tui import review_data as rd
 from passagelog.tui import text as fmt
 from passagelog.tui.chart import Chart, Series, render_chart
+from passagelog.tui.review_data import ReviewSummary
 
 #: table -> columns (header, row key, how to write it)
 TABLES = {
@@ -94,67 +99,16 @@ def cell(value, how: str) -> str:
     return str(value)
 
 
-#: points kept per series for the plots (a terminal chart has a few tens of thousands of dots)
-PLOT_POINTS = 20_000
-
-
-def _thin(*columns: np.ndarray) -> list[np.ndarray]:
-    """Every k-th point so that at most PLOT_POINTS remain (the last one kept)."""
-    n = len(columns[0])
-    if n <= PLOT_POINTS:
-        return [np.asarray(c) for c in columns]
-    idx = np.unique(np.concatenate([np.arange(0, n, n // PLOT_POINTS + 1), [n - 1]]))
-    return [np.asarray(c)[idx] for c in columns]
-
-
-def _envelope(t: np.ndarray, *columns: np.ndarray) -> list[np.ndarray]:
-    """Min and max of each column over PLOT_POINTS/2 time bins: the plot keeps every spike."""
-    n = len(t)
-    if n <= PLOT_POINTS:
-        return [np.asarray(t)] + [np.asarray(c) for c in columns]
-    bins = PLOT_POINTS // 2
-    edges = np.linspace(0, n, bins + 1).astype(np.int64)
-    starts = edges[:-1]
-    tt = np.repeat(np.asarray(t)[starts], 2)
-    out = [tt]
-    for c in columns:
-        c = np.asarray(c, dtype=float)
-        filled = np.where(np.isfinite(c), c, np.nan)
-        lo = np.fmin.reduceat(np.where(np.isnan(filled), np.inf, filled), starts)
-        hi = np.fmax.reduceat(np.where(np.isnan(filled), -np.inf, filled), starts)
-        lo[~np.isfinite(lo)] = np.nan
-        hi[~np.isfinite(hi)] = np.nan
-        out.append(np.column_stack([lo, hi]).ravel())
-    return out
-
 
 def _n(count: int, one: str, many: str | None = None) -> str:
     return f"{count} {one if count == 1 else (many or one + 's')}"
 
 
-def track_painter(review):
+def track_painter(summary: ReviewSummary):
     """Track (fixes) against the plan's legs, longitude across, latitude up."""
-    fr = review.fixes
-    route = review.routes[-1]
-    from passagelog.nav.legs import make_leg
-
-    plan_lat, plan_lon = [], []
-    for k, leg in enumerate(route.legs):
-        a, b = route.waypoints[k], route.waypoints[k + 1]
-        solved = make_leg(a.lat, a.lon, b.lat, b.lon, leg.sailing)
-        along = np.linspace(0.0, solved.distance_m, 60)
-        lats, lons = solved.points_at_np(along)
-        plan_lat.append(np.asarray(lats))
-        plan_lon.append(np.asarray(lons))
-    plat = np.concatenate(plan_lat)
-    plon = np.concatenate(plan_lon)
-    # unwrap longitudes about the plan's start so a track across 180° stays in one piece
-    ref = float(plon[0])
-    unwrap = lambda lon: (np.asarray(lon) - ref + 180.0) % 360.0 - 180.0 + ref  # noqa: E731
-    plon = unwrap(plon)
-    flat, flon = _thin(np.asarray(fr.lat), unwrap(fr.lon))
-    wlat = np.array([w.lat for w in route.waypoints])
-    wlon = unwrap(np.array([w.lon for w in route.waypoints]))
+    a = summary.arrays
+    plon, plat, flon, flat = a["plan_lon"], a["plan_lat"], a["fix_lon"], a["fix_lat"]
+    wlon, wlat = a["wp_lon"], a["wp_lat"]
     allx = np.concatenate([plon, flon])
     ally = np.concatenate([plat, flat])
     mid_lat = float(np.nanmean(ally)) if ally.size else 0.0
@@ -177,28 +131,16 @@ def track_painter(review):
         )
         legend = Text.assemble(("⠿ plan", "dim"), "   ", ("⠿ track", "bold"), "   ",
                                ("⠿ waypoints", "bold reverse"),
-                               f"   {len(fr.time_s)} fixes, {len(route.waypoints)} waypoints\n")
+                               f"   {summary.fixes} fixes, {summary.waypoints} waypoints\n")
         return legend + body
 
     return paint
 
 
-def xte_painter(review):
+def xte_painter(summary: ReviewSummary):
     """XTE (NM, + starboard up) over time, with each fix's leg limits drawn."""
-    fr = review.fixes
-    t = np.asarray(fr.time_s)
-    xte = np.asarray(fr.xte_m) / NM_M
-    port = np.full(t.shape, np.nan)
-    stbd = np.full(t.shape, np.nan)
-    for r, route in enumerate(review.routes):
-        for k, leg in enumerate(route.legs):
-            sel = (np.asarray(fr.revision) == r) & (np.asarray(fr.leg) == k + 1)
-            if leg.xtl_port_m is not None:
-                port[sel] = -leg.xtl_port_m / NM_M
-            if leg.xtl_stbd_m is not None:
-                stbd[sel] = leg.xtl_stbd_m / NM_M
-
-    t, xte, port, stbd = _envelope(t, xte, port, stbd)
+    a = summary.arrays
+    t, xte, port, stbd = a["xte_t"], a["xte_nm"], a["port_nm"], a["stbd_nm"]
 
     def paint(width: int, height: int) -> Text:
         if t.size == 0:
@@ -238,9 +180,11 @@ class ReviewView(Vertical):
     def __init__(self, session, **kwargs) -> None:
         super().__init__(**kwargs)
         self.session = session
-        self.review = None
+        self.review = None  # the Review when reconciled in this app (None when kept)
+        self.summary: ReviewSummary | None = None
         self.loaded = False
-        self.computed = 0
+        self.computed = 0  # how many times current figures were shown
+        self._shown_key: str | None = None
 
     def compose(self) -> ComposeResult:
         yield Static("Review reconciles the whole voyage when first shown.", id="review-head",
@@ -262,10 +206,9 @@ class ReviewView(Vertical):
                 table.add_column(header, key=col)
 
     def on_show(self) -> None:
-        if not self.loaded:
-            self.loaded = True
-            # paint the view first, then start the (long) reconciliation
-            self.set_timer(0.05, self.action_recompute)
+        # paint the view first, then load (at once when kept and current)
+        self.loaded = True
+        self.set_timer(0.05, self.load)
 
     def action_show_track(self) -> None:
         self.query_one("#review-tabs", TabbedContent).active = "review-track"
@@ -275,54 +218,90 @@ class ReviewView(Vertical):
 
     def action_recompute(self) -> None:
         self.query_one("#review-head", Static).update("Reconciling the voyage…")
-        self.recompute()
+        self.load(force=True)
+
+    def _head(self, text: str) -> None:
+        self.query_one("#review-head", Static).update(text)
 
     @work(thread=True, exclusive=True, group="review")
-    def recompute(self) -> None:
-        from passagelog.review.engine import reconcile
+    def load(self, force: bool = False) -> None:
+        """Show the kept review if it is current; else show it marked as older while the
+        voyage is reconciled again, then show and keep the new one."""
+        from passagelog.store import derived
 
         s = self.session
+        call = self.app.call_from_thread
         try:
             if s.voyage is None:
                 raise PassagelogError("no voyage is open")
-            s.reload_route()
-            if s.route is None:
-                raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
-            plan = [(t, r) for t, r in s.plan_revisions] or s.route
-            review = reconcile(plan, s.fix_arrays(), zd_minutes=s.zd_minutes,
-                               entries=s.entries(),
-                               planned_departure_utc=s.voyage.departure_utc)
+            book = s.logbook  # this worker thread's own connection
+            key = rd.stamp(derived.content_stamp(book, s.voyage.voyage_id), {})
+            if key == self._shown_key and not force:
+                return
+            if not force:
+                kept = derived.read_result(book, s.voyage.voyage_id, rd.KIND)
+                summary = rd.decode(kept.data) if kept is not None else None
+                if summary is not None and kept.stamp == key:
+                    call(self._show, summary, key, None)
+                    return
+                if summary is not None:
+                    call(self._show, summary, None, None)
+                    call(self._head, self._head_text(summary) + "  [b]Updating:[/b] the logbook "
+                         f"has changed since this review ({fmt.utc_time(kept.written_utc)}); "
+                         "reconciling…")
+                else:
+                    call(self._head, "Reconciling the voyage…")
+            review = self._reconcile()
+            summary = rd.summarize(review)
+            try:
+                derived.write_result(book, s.voyage.voyage_id, rd.KIND, key, rd.encode(summary))
+            except PassagelogError:
+                pass  # kept only to open faster next time; a busy or read-only logbook is fine
         except Exception as exc:  # noqa: BLE001 - shown in the view, never fatal
-            self.app.call_from_thread(self._failed, str(exc))
+            call(self._failed, str(exc))
             return
-        rows = {key: list(review.iter_rows(key)) for key in TABLES}
-        painters = (track_painter(review), xte_painter(review)) if len(review.fixes) else None
-        self.app.call_from_thread(self._show, review, rows, painters)
+        call(self._show, summary, key, review)
+
+    def _reconcile(self):
+        from passagelog.review.engine import reconcile
+
+        s = self.session
+        s.reload_route()
+        if s.route is None:
+            raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
+        plan = [(t, r) for t, r in s.plan_revisions] or s.route
+        return reconcile(plan, s.fix_arrays(), zd_minutes=s.zd_minutes, entries=s.entries(),
+                         planned_departure_utc=s.voyage.departure_utc)
 
     def _failed(self, message: str) -> None:
-        self.query_one("#review-head", Static).update(f"Cannot review: {message}")
+        self._head(f"Cannot review: {message}")
 
-    def _show(self, review, rows: dict, painters=None) -> None:
-        self.review = review
-        self.computed += 1
-        fr = review.fixes
-        head = self.query_one("#review-head", Static)
-        if len(fr) == 0:
-            head.update("No fixes yet: nothing to review.")
-        else:
-            t0 = datetime.fromtimestamp(float(fr.time_s[0]), timezone.utc)
-            t1 = datetime.fromtimestamp(float(fr.time_s[-1]), timezone.utc)
-            head.update(
-                f"{_n(len(fr), 'fix', 'fixes')} {fmt.utc_time(t0)} to {fmt.utc_time(t1)}; "
-                f"{_n(len(review.passages), 'passage')}, "
-                f"{_n(len(review.episodes), 'episode')} outside the limits, "
-                f"{_n(len(review.gaps), 'gap')}, "
-                f"{_n(len(review.suspects), 'suspect fix', 'suspect fixes')} left out")
-        for key, columns in TABLES.items():
-            table = self.query_one(f"#review-table-{key}", DataTable)
+    @staticmethod
+    def _head_text(summary: ReviewSummary) -> str:
+        if not summary.fixes:
+            return "No fixes yet: nothing to review."
+        t0 = datetime.fromtimestamp(summary.first_s, timezone.utc)
+        t1 = datetime.fromtimestamp(summary.last_s, timezone.utc)
+        c = summary.counts
+        return (f"{_n(summary.fixes, 'fix', 'fixes')} {fmt.utc_time(t0)} to "
+                f"{fmt.utc_time(t1)}; {_n(c['passages'], 'passage')}, "
+                f"{_n(c['episodes'], 'episode')} outside the limits, {_n(c['gaps'], 'gap')}, "
+                f"{_n(c['suspects'], 'suspect fix', 'suspect fixes')} left out")
+
+    def _show(self, summary: ReviewSummary, key: str | None, review=None) -> None:
+        """Fill the view from ``summary``; ``key`` None marks it as older than the logbook."""
+        self.summary = summary
+        if review is not None:
+            self.review = review
+        if key is not None:
+            self._shown_key = key
+            self.computed += 1
+        self._head(self._head_text(summary))
+        for tkey, columns in TABLES.items():
+            table = self.query_one(f"#review-table-{tkey}", DataTable)
             table.clear()
-            for row in rows[key]:
+            for row in summary.rows[tkey]:
                 table.add_row(*(cell(row.get(col), how) for _h, col, how in columns))
-        if painters is not None:
-            self.query_one("#review-track-chart", Chart).set_painter(painters[0])
-            self.query_one("#review-xte-chart", Chart).set_painter(painters[1])
+        if summary.fixes:
+            self.query_one("#review-track-chart", Chart).set_painter(track_painter(summary))
+            self.query_one("#review-xte-chart", Chart).set_painter(xte_painter(summary))

@@ -23,7 +23,7 @@ HERE = Path(__file__).parent
 T0 = datetime(2026, 3, 1, 12, 0, tzinfo=timezone.utc)
 
 #: schema version -> frozen SQL file of the release that introduced it
-RELEASED = {1: HERE / "schema_v1.sql"}
+RELEASED = {1: HERE / "schema_v1.sql", 2: HERE / "schema_v2.sql"}
 
 
 def _schema_of(conn: sqlite3.Connection) -> list[tuple]:
@@ -43,17 +43,17 @@ def _make_old_logbook(path: Path, version: int) -> None:
     conn.close()
 
 
-def test_released_v1_sql_is_what_this_code_creates(tmp_path):
-    """Version 1 must never be edited in place: a change is a new migration."""
+def test_released_sql_is_what_this_code_creates(tmp_path):
+    """A released version must never be edited in place: a change is a new migration."""
+    assert max(RELEASED) == SCHEMA_VERSION, "freeze the new version's SQL in RELEASED"
     frozen = tmp_path / "frozen.sqlite"
-    _make_old_logbook(frozen, 1)
+    _make_old_logbook(frozen, SCHEMA_VERSION)
     with Logbook.open(tmp_path / "new.sqlite") as book:
-        if SCHEMA_VERSION == 1:
-            conn = sqlite3.connect(frozen)
-            assert _schema_of(conn) == _schema_of(book._conn)
-            conn.close()
-    assert [s for s in _statements(MIGRATIONS[1])] == _statements(
-        RELEASED[1].read_text(encoding="utf-8"))
+        conn = sqlite3.connect(frozen)
+        assert _schema_of(conn) == _schema_of(book._conn)
+        conn.close()
+    for version, path in RELEASED.items():
+        assert _statements(MIGRATIONS[version]) == _statements(path.read_text(encoding="utf-8"))
 
 
 @pytest.mark.parametrize("version", sorted(RELEASED))
@@ -79,9 +79,10 @@ def test_a_next_version_migration_upgrades_in_place_keeping_records(tmp_path):
     with Logbook.open(path) as book:
         v = book.add_voyage(Voyage("V"))
         book.add_fixes(v, [Fix(T0 + timedelta(minutes=i), 50 + i * 1e-3, -1) for i in range(5)])
-        book._migrate({**MIGRATIONS, 2: "CREATE TABLE weather (time_utc TEXT NOT NULL, "
-                                        "wind_kn REAL CHECK (wind_kn >= 0));"})
-        assert book.schema_version == 2
+        nxt = SCHEMA_VERSION + 1
+        book._migrate({**MIGRATIONS, nxt: "CREATE TABLE weather (time_utc TEXT NOT NULL, "
+                                          "wind_kn REAL CHECK (wind_kn >= 0));"})
+        assert book.schema_version == nxt
         assert book._q("SELECT count(*) FROM weather")[0][0] == 0
         assert len(book.fixes(v)) == 5 and book.verify().ok
 
@@ -92,8 +93,9 @@ def test_a_failed_migration_leaves_the_file_as_it_was(tmp_path):
         book.add_voyage(Voyage("V"))
         before = _schema_of(book._conn)
         with pytest.raises(sqlite3.OperationalError):
-            book._migrate({**MIGRATIONS, 2: "CREATE TABLE extra (x);\nCREATE TABLE extra (y);\n"})
-        assert book.schema_version == 1
+            book._migrate({**MIGRATIONS, SCHEMA_VERSION + 1:
+                           "CREATE TABLE extra (x);\nCREATE TABLE extra (y);\n"})
+        assert book.schema_version == SCHEMA_VERSION
         assert _schema_of(book._conn) == before
 
 

@@ -61,3 +61,71 @@ async def test_review_shows_the_excursion_and_the_plots(session):
         app.query_one("#review-tabs").active = "review-track"
         await pilot.pause()
         assert "10 fixes, 4 waypoints" in app.query_one("#review-track-chart").render().plain
+
+
+async def _open_review(session):
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    out = {}
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f5")
+        view = app.query_one("#review-view")
+        for _ in range(200):
+            await pilot.pause(0.05)
+            if view.computed:
+                break
+        table = app.query_one("#review-table-passages")
+        out = {"computed": view.computed, "reconciled": view.review is not None,
+               "head": str(view.query_one("#review-head").render()),
+               "passages": [[str(c) for c in table.get_row_at(i)]
+                            for i in range(table.row_count)]}
+    return out
+
+
+async def test_a_kept_review_opens_without_reconciling_and_a_changed_logbook_refreshes(
+        logbook_path):
+    from passagelog.store import derived
+    from passagelog.tui import review_data as rd
+    from passagelog.tui.session import Session
+
+    from .conftest import fixed_clock
+
+    s = Session(logbook_path, clock=fixed_clock)
+    t = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
+    for h in range(12):
+        lat, lon = point_off_leg(s.route, 1 if h < 6 else 2, (2 + 12 * h) * NM
+                                 if h < 6 else (12 * (h - 6) + 1) * NM, 0.3 * NM)
+        s.add_fix(Fix(t + timedelta(hours=h), lat, lon))
+    first = await _open_review(Session(logbook_path, clock=fixed_clock))
+    assert first["computed"] == 1 and first["reconciled"]
+    assert "12 fixes" in first["head"]
+    kept = derived.read_result(s.logbook, s.voyage.voyage_id, rd.KIND)
+    assert kept is not None and rd.decode(kept.data).fixes == 12
+
+    # opened again on the unchanged logbook: the kept review, no reconciliation
+    again = await _open_review(Session(logbook_path, clock=fixed_clock))
+    assert again["computed"] == 1 and not again["reconciled"]
+    assert again["passages"] == first["passages"] and again["head"] == first["head"]
+
+    # one more fix: the stamp moves, the view reconciles again and keeps the new review
+    lat, lon = point_off_leg(s.route, 2, 80 * NM, 0.3 * NM)
+    s.add_fix(Fix(t + timedelta(hours=12), lat, lon))
+    third = await _open_review(Session(logbook_path, clock=fixed_clock))
+    assert third["reconciled"] and "13 fixes" in third["head"]
+    assert rd.decode(derived.read_result(s.logbook, s.voyage.voyage_id, rd.KIND).data).fixes == 13
+
+
+def test_summary_round_trip_and_damage_is_ignored():
+    import numpy as np
+
+    from passagelog.tui import review_data as rd
+
+    summary = rd.ReviewSummary(
+        fixes=2, first_s=0.0, last_s=60.0, counts={"passages": 0, "episodes": 0, "gaps": 0,
+                                                   "suspects": 0},
+        rows={k: [] for k in rd.TABLE_KEYS} | {"legs": [{"leg": 1, "smg_kn": float("nan")}]},
+        waypoints=2, arrays={k: np.arange(3.0) for k in rd._ARRAYS})
+    back = rd.decode(rd.encode(summary))
+    assert back.rows["legs"] == [{"leg": 1, "smg_kn": None}]
+    assert all(np.array_equal(back.arrays[k], np.arange(3.0)) for k in rd._ARRAYS)
+    assert rd.decode(b"not an npz") is None
+    assert rd.decode(rd.encode(summary)[:-10]) is None
