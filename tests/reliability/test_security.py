@@ -95,6 +95,7 @@ SQL_NAMES_ALLOWED = {
     "cols", "chain", "table", "key", "id_col", "ccols", "version", "self._depth",
     "_FIX_COLS", "_ENTRY_COLS", "ch.PLAN_POINT_COLS", "ch.PLAN_SCHEDULE_COLS",
     "int(BUSY_TIMEOUT_S * 1000)",
+    "marks",  # a run of "?" placeholders, one per bound value
 }
 SQL_WORDS = ("SELECT", "INSERT", "UPDATE", "DELETE", "PRAGMA", "SAVEPOINT", "ROLLBACK",
              "RELEASE", "CREATE", "DROP", "ALTER", "WITH", "VALUES", "FROM", "WHERE")
