@@ -39,6 +39,22 @@ def fail(exc: PassagelogError) -> click.ClickException:
     return err
 
 
+def unwritable(path: str | os.PathLike, exc: OSError, what: str = "output file"):
+    """An OSError met while writing ``path`` as an InputError naming the path (exit 1)."""
+    from passagelog.errors import InputError
+
+    reason = exc.strerror or type(exc).__name__
+    return InputError(f"{what} {str(path)!r} cannot be written: {reason}")
+
+
+def refuse_nul(path: str | os.PathLike, what: str = "output file") -> None:
+    """No file name holds NUL (open() would raise ValueError): an InputError naming it."""
+    from passagelog.errors import InputError
+
+    if "\x00" in str(path):
+        raise InputError(f"{what} {str(path)!r} holds a NUL character; give a file name")
+
+
 def emit_json(obj: Any) -> None:
     click.echo(json.dumps(obj, ensure_ascii=False, allow_nan=False))
 

@@ -91,16 +91,31 @@ def demo(ctx: click.Context, scenario: str, no_tui: bool, keep: str | None) -> N
     passagelog demo --no-tui            its review, printed
     passagelog demo --keep demo.sqlite  keep the logbook to try other commands on
     """
+    from passagelog.cli.common import refuse_nul, unwritable
+
     tmp = None
     if keep:
+        refuse_nul(keep, "--keep")
         path = Path(keep)
-        if path.exists():
+        try:
+            taken = path.exists()
+        except OSError as exc:  # e.g. a file name too long for the file system
+            raise unwritable(keep, exc, "--keep") from exc
+        if taken:
             raise click.UsageError(f"{keep} exists already; give a new file for --keep")
     else:
         tmp = Path(tempfile.mkdtemp(prefix="passagelog-demo-"))
         path = tmp / "demo-logbook.sqlite"
     try:
-        names = build_demo_logbook(path)
+        try:
+            names = build_demo_logbook(path)
+        except BaseException as exc:  # an error, or Ctrl-C: nothing half-built is kept
+            if keep:
+                _remove_logbook(path)
+            if isinstance(exc, OSError):
+                raise unwritable(keep or path, exc, "--keep" if keep else "demo logbook") \
+                    from exc
+            raise
         voyage = names[scenario]
         if keep:
             click.echo(f"demo logbook written to {path}", err=True)
@@ -113,6 +128,15 @@ def demo(ctx: click.Context, scenario: str, no_tui: bool, keep: str | None) -> N
     finally:
         if tmp is not None:
             shutil.rmtree(tmp, ignore_errors=True)
+
+
+def _remove_logbook(path: Path) -> None:
+    """Remove a logbook file made by this command and its WAL side files, if there."""
+    for p in (path, path.with_name(path.name + "-wal"), path.with_name(path.name + "-shm")):
+        try:
+            p.unlink()
+        except OSError:
+            pass
 
 
 def _print_review(ctx: click.Context, path: Path, voyage: str) -> None:

@@ -22,7 +22,7 @@ from typing import IO, Iterator
 
 import click
 
-from passagelog.cli.common import db_path_from
+from passagelog.cli.common import db_path_from, refuse_nul, unwritable
 
 #: Files at least this large get a progress bar (on a terminal, without -q).
 PROGRESS_MIN_BYTES = 1 << 20
@@ -244,14 +244,20 @@ def _output(output: str) -> Iterator[IO[str]]:
     if output == "-":
         yield click.get_text_stream("stdout")
         return
+    refuse_nul(output)
     target = Path(output)
-    fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", dir=target.parent or ".")
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f".{target.name}.", dir=target.parent or ".")
+    except OSError as exc:  # no such folder, no permission, name too long
+        raise unwritable(output, exc) from exc
     try:
         with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
             yield fh
         os.replace(tmp, target)
-    except BaseException:
+    except BaseException as exc:
         os.unlink(tmp)
+        if isinstance(exc, OSError):  # the target a directory, the disk full
+            raise unwritable(output, exc) from exc
         raise
 
 

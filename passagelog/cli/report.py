@@ -6,7 +6,7 @@ from pathlib import Path
 
 import click
 
-from passagelog.cli.common import TABLE_FORMATS, emit_records
+from passagelog.cli.common import TABLE_FORMATS, emit_records, refuse_nul, unwritable
 
 FORMATS = TABLE_FORMATS + ("html",)
 
@@ -15,7 +15,11 @@ def _write(text: str, output: str | None) -> None:
     if output in (None, "-"):
         click.echo(text, nl=not text.endswith("\n"))
     else:
-        Path(output).write_text(text, encoding="utf-8")
+        refuse_nul(output)
+        try:
+            Path(output).write_text(text, encoding="utf-8")
+        except OSError as exc:  # a directory, no such folder, no permission, name too long
+            raise unwritable(output, exc) from exc
         click.echo(f"wrote {output}", err=True)
 
 

@@ -259,3 +259,71 @@ def test_regression_formats_path_with_nul():
     for read in (read_routes, read_fixes):
         with pytest.raises(FormatError, match="NUL"):
             read("route\x00.csv")
+
+
+def _bad_output_paths(tmp_path):
+    """Output paths no file can be written at: (path, what the message says)."""
+    (tmp_path / "afile").write_text("")
+    return [
+        (tmp_path / ("9" * 400 + ".gpx"), "File name too long"),  # ENAMETOOLONG
+        (tmp_path / "no-such-folder" / "out.gpx", "No such file or directory"),
+        (tmp_path / "afile" / "out.gpx", "Not a directory"),
+    ]
+
+
+def test_regression_demo_keep_unwritable_path(tmp_path):
+    # ``demo --keep`` with a name too long for the file system: OSError escaped
+    # Path.exists() as a traceback (long CLI fuzz, seed 4656). A path through a file
+    # (Logbook.open refuses it) is named too, and nothing is left behind.
+    long_name = tmp_path / ("9" * 400)
+    code, _out, err = relkit.run_cli(["demo", "--no-tui", "--keep", str(long_name)])
+    relkit.check_cli_result(["demo"], code, _out, err)
+    assert code == 1 and "--keep" in err and "9" * 400 in err, err
+    assert "File name too long" in err
+    (tmp_path / "afile").write_text("")
+    through = tmp_path / "afile" / "demo.sqlite"
+    code, _out, err = relkit.run_cli(["demo", "--no-tui", "--keep", str(through)])
+    relkit.check_cli_result(["demo"], code, _out, err)
+    assert code == 1 and str(through) in err, err
+    # a NUL (long CLI fuzz, seed 2684): ValueError escaped Path.exists()
+    code, _out, err = relkit.run_cli(["demo", "--no-tui", "--keep", "demo\x00.sqlite"])
+    relkit.check_cli_result(["demo"], code, _out, err)
+    assert code == 1 and "--keep" in err and "NUL" in err, err
+    assert sorted(p.name for p in tmp_path.iterdir()) == ["afile"]
+
+
+@pytest.fixture
+def small_book(tmp_path):
+    from passagelog.model import Voyage
+    from passagelog.store import Logbook
+
+    db = tmp_path / "book.sqlite"
+    with Logbook.open(db) as book:
+        v = book.add_voyage(Voyage("V", departure_utc=relkit.T0))
+        plan_id, _rev = book.create_plan(relkit.sample_route(), "created")
+        book.assign_plan(v, plan_id)
+        book.add_fixes(v, relkit.sample_fixes())
+    return db
+
+
+@pytest.mark.parametrize("command", [
+    ["export", "fixes", "V", "--format", "gpx"],
+    ["export", "plan", "Sample route", "--format", "gpx"],
+    ["export", "voyage", "V", "--format", "gpx"],
+    ["report", "legs", "V", "--format", "html"],
+])
+def test_regression_output_file_unwritable(tmp_path, small_book, command):
+    # ``export ... -o`` and ``report ... -o`` naming a directory, a missing folder, a path
+    # through a file or a name too long: OSError (IsADirectoryError, FileNotFoundError...)
+    # escaped as a traceback. Now one line naming the file, exit 1, no temporary file left.
+    out_dir = tmp_path / "out"
+    out_dir.mkdir()
+    cases = _bad_output_paths(out_dir) + [(out_dir, "Is a directory"),
+                                          (str(out_dir / "a\x00b.gpx"), "NUL")]
+    before = sorted(p.name for p in out_dir.iterdir())
+    for target, reason in cases:
+        argv = ["--db", str(small_book)] + command + ["-o", str(target)]
+        code, out, err = relkit.run_cli(argv)
+        relkit.check_cli_result(argv, code, out, err)
+        assert code == 1 and repr(str(target))[1:-1] in err and reason in err, (argv, err)
+        assert sorted(p.name for p in out_dir.iterdir()) == before, "a file was left behind"
