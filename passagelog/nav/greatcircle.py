@@ -20,6 +20,17 @@ here by iterating on the foot's parameter along the line:
    ellipsoid each step shrinks the error by a factor well below f (d/R)^2);
 3. repeat on the positions that have not yet moved by less than :data:`FOOT_TOLERANCE_M`.
 
+The line extended passes the position once per turn round the Earth, so there is one
+candidate foot per turn (on the ellipsoid the line does not close, and the candidates are not
+one point). The foot taken is the one nearest the leg's middle along the line, with the
+along-track signed from the leg's start: ``along_m - distance_m / 2`` lies within about half
+a turn (some 20,000 km; up to some 10 % more for positions near the pole of the line, where
+the candidates lie farther apart). Along-track and XTE are then continuous for positions
+within 90 degrees of arc of the leg; they jump only where two candidates are equally far
+along the line from the middle, near the antipode of the leg's middle, some 90 degrees of arc
+or more from every point of the leg. Such a position gets the geometric figures (finite, a
+foot in the strict sense), but they tell a navigator nothing about that leg.
+
 The batch version (:meth:`GreatCircleLeg.offsets_np`) evaluates points of the line in numpy
 (the series of geographiclib's ``GeodesicLine``) and runs one vectorised pyproj inverse per
 iteration on the positions not yet converged; the scalar version (:meth:`GreatCircleLeg.offset`)
@@ -49,6 +60,11 @@ POLE_TOLERANCE_RAD = 1e-4
 #: Beyond this angular distance (radians of the fitted sphere) from the foot, the step is
 #: taken on the auxiliary sphere, whose distance to the line's pole is right to O(f).
 FAR_RAD = 1.3
+#: A foot within this arc (radians on the auxiliary sphere) of half a turn from the leg's
+#: middle is checked against the foot one turn of the line the other way round: the line
+#: does not close on the ellipsoid (one turn in arc is some 2 pi f short of, or beyond, the
+#: place where it passes the position again), so the first foot may be the farther one.
+WRAP_CHECK_RAD = 0.1
 
 
 def _course(azi: float) -> float:
@@ -387,6 +403,15 @@ class GreatCircleLeg:
             sig = half + np.mod(sig_abs - self._sig1 - half + np.pi, 2 * np.pi) - np.pi
         return sig, u, v
 
+    def _plane_np(self, lats, lons, sig):
+        """The position in the plane of the line's great circle on the auxiliary sphere,
+        ``(u, v)``, with the longitude lag of the line at arc ``sig`` from the start."""
+        phi = np.radians(lats)
+        beta = np.arctan2(self._f1 * np.sin(phi), np.cos(phi))
+        cb, sb = np.cos(beta), np.sin(beta)
+        omg = self._omg1 + np.radians(_lon_np(lons - self.lon1)) - self._A3c * sig
+        return cb * np.cos(omg), self._salp0 * cb * np.sin(omg) + self._calp0 * sb
+
     def _first_foot_scalar(self, lat, lon):
         s, u, v = self._first_foot(np.array([lat], dtype=np.float64),
                                    np.array([lon], dtype=np.float64))
@@ -437,8 +462,32 @@ class GreatCircleLeg:
         if at_pole.any():
             i = int(np.flatnonzero(at_pole)[0])
             raise GeometryError(self._pole_message(lat[i], lon[i], i))
+        xte, sig = self._feet_np(lat, lon, sig, u, v)
+        # near half a turn from the middle: the candidate foot one turn the other way round
+        # may be the nearer one along the line (module docstring)
+        half = 0.5 * math.radians(self.arc_deg)
+        wrap = np.abs(sig - half) > math.pi - WRAP_CHECK_RAD
+        if wrap.any():
+            idx = np.flatnonzero(wrap)
+            sig_b = sig[idx] - np.copysign(2.0 * math.pi, sig[idx] - half)
+            u_b, v_b = self._plane_np(lat[idx], lon[idx], sig_b)
+            xte_b, sig_b = self._feet_np(lat[idx], lon[idx], sig_b, u_b, v_b, idx)
+            mid = 0.5 * self.distance_m
+            better = (np.abs(self._s_of_sigma_np(sig_b) - mid)
+                      < np.abs(self._s_of_sigma_np(sig[idx]) - mid))
+            xte[idx] = np.where(better, xte_b, xte[idx])
+            sig[idx] = np.where(better, sig_b, sig[idx])
+        along = self._s_of_sigma_np(sig)
+        return xte.reshape(shape), along.reshape(shape)
+
+    def _feet_np(self, lat, lon, sig, u, v, index=None):
+        """Iterate from the arcs ``sig`` to the feet: ``(xte_m, sig_foot)`` arrays.
+        ``index`` numbers the positions in the caller's batch (for the error message)."""
+        n = lat.size
+        xte = np.empty(n)
+        sig_foot = np.empty(n)
         geod = self.earth.geod
-        a, e2 = self.earth.a, self.earth.e2
+        a = self.earth.a
         sphere = self.earth.is_sphere
         todo = np.arange(n)
         s_todo = sig
@@ -461,10 +510,10 @@ class GreatCircleLeg:
                 idx = todo[done]
                 xte[idx] = self._xte_np(dr[done], theta[done],
                                         R if sphere else R[done])
-                along[idx] = self._s_of_sigma_np(s_new[done])
+                sig_foot[idx] = s_new[done]
             keep = ~done
             if not keep.any():
-                return xte.reshape(shape), along.reshape(shape)
+                return xte, sig_foot
             todo = todo[keep]
             s_todo = s_new[keep]
             prev_s, prev_f = prev_s[keep], prev_f[keep]
@@ -472,7 +521,8 @@ class GreatCircleLeg:
             u_t, v_t = u_t[keep], v_t[keep]
         i = int(todo[0])
         raise GeometryError(
-            f"position {i} ({lat[i]!r}, {lon[i]!r}): the foot on the great-circle leg "
+            f"position {i if index is None else int(index[i])} ({lat[i]!r}, {lon[i]!r}): "
+            f"the foot on the great-circle leg "
             f"{self._ends()} did not converge in {FOOT_MAX_ITERATIONS} iterations")
 
     def _gauss_radius_np(self, lat_a, lat_b):
@@ -515,6 +565,26 @@ class GreatCircleLeg:
         sig, u, v = self._first_foot_scalar(lat, lon)
         if math.hypot(u, v) < POLE_TOLERANCE_RAD:
             raise GeometryError(self._pole_message(lat, lon))
+        xte, sig = self._foot_scalar(lat, lon, sig, u, v)
+        half = 0.5 * math.radians(self.arc_deg)
+        if abs(sig - half) > math.pi - WRAP_CHECK_RAD:  # as in offsets_np
+            sig_b = sig - math.copysign(2.0 * math.pi, sig - half)
+            u_b, v_b = (float(x[0]) for x in self._plane_np(np.array([lat]), np.array([lon]),
+                                                            np.array([sig_b])))
+            xte_b, sig_b = self._foot_scalar(lat, lon, sig_b, u_b, v_b)
+            mid = 0.5 * self.distance_m
+            if abs(self._s_of_sigma(sig_b) - mid) < abs(self._s_of_sigma(sig) - mid):
+                xte, sig = xte_b, sig_b
+        return xte, self._s_of_sigma(sig)
+
+    def _s_of_sigma(self, sig12: float) -> float:
+        """Distance along the line from the start at arc ``sig12`` (geographiclib)."""
+        from geographiclib.geodesic import Geodesic
+
+        return self._line.ArcPosition(math.degrees(sig12), Geodesic.DISTANCE)["s12"]
+
+    def _foot_scalar(self, lat: float, lon: float, sig: float, u: float, v: float):
+        """Iterate from the arc ``sig`` to the foot: ``(xte_m, sig_foot)``."""
         from geographiclib.geodesic import Geodesic
 
         line, g = self._line, self._geod
@@ -544,8 +614,7 @@ class GreatCircleLeg:
                     xte = R * math.asin(max(-1.0, min(1.0, math.sin(dr) * sin_t)))
                 else:
                     xte = math.copysign(dr * R, sin_t)
-                along = line.ArcPosition(math.degrees(sig), Geodesic.DISTANCE)["s12"]
-                return xte, along
+                return xte, sig
         raise GeometryError(
             f"position ({lat!r}, {lon!r}): the foot on the great-circle leg {self._ends()} "
             f"did not converge in {FOOT_MAX_ITERATIONS} iterations")

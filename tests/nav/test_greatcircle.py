@@ -516,3 +516,88 @@ def test_property_reversing_the_leg_flips_xte(lat1, lon1, lat2, lon2, plat, plon
     assume(abs(a1 - leg.distance_m / 2) < 9_000_000)  # the same foot, not the far one
     assert x2 == pytest.approx(-x1, abs=1e-3)
     assert a2 == pytest.approx(leg.distance_m - a1, abs=1e-3)
+
+
+# ------------------------------------------------ far feet: the one nearest the leg's middle
+def test_equator_leg_feet_near_the_antipode_of_its_middle():
+    # Regression (docs/reliability.md, along-track flip): the foot of a position on an
+    # equatorial leg lies on the position's meridian (meridians cross the equator at right
+    # angles), and the equator closes after 2 pi a while one turn of arc of its geodesic is
+    # 2 pi b: the foot was taken a turn the long way round up to ~0.6 degrees of longitude
+    # either side of the antipode of the leg's middle. Along-track is a * dlon measured from
+    # the start the near way round the middle (the equator is a circle of radius a); |XTE|
+    # is the meridian arc from geographiclib's Geodesic.Inverse.
+    leg = GreatCircleLeg(0.0, 0.0, 0.0, 30.0)  # middle 15E, its antipode 165W
+    lons, lats = [], []
+    for d in (-2.0, -0.6, -0.3, -0.01, 0.01, 0.3, 0.6, 2.0):
+        for la in (0.0, 5.0, -40.0, 70.0):
+            lons.append(-165.0 + d)
+            lats.append(la)
+    lat, lon = np.array(lats), np.array(lons)
+    xte, along = leg.offsets_np(lat, lon)
+    dlon = (lon - 15.0 + 180.0) % 360.0 - 180.0 + 15.0  # within 180 degrees of the middle
+    assert np.max(np.abs(along - WGS84.a * np.radians(dlon))) < 1e-4
+    for i in range(len(lat)):
+        ref = Geodesic.WGS84.Inverse(0.0, lon[i], lat[i], lon[i])["s12"]  # geographiclib
+        assert abs(xte[i]) == pytest.approx(ref, abs=1e-4)
+        x, a = leg.offset(lat[i], lon[i])
+        assert x == pytest.approx(xte[i], abs=1e-4) and a == pytest.approx(along[i], abs=1e-4)
+
+
+def _feet_geographiclib(row, lat, lon, scan=900):
+    """Every foot of a position on the line extended a turn either side of the leg's middle,
+    from geographiclib alone (InverseLine for the line, Inverse from its points to the
+    position): local minima of the distance on a scan, refined by bisection on the right
+    angle to 1e-6 m. Returns [(along_m, xte_m)]."""
+    line = Geodesic.WGS84.InverseLine(*row)
+    mid = 0.5 * line.s13
+
+    def at(s):
+        p = line.Position(s)
+        inv = Geodesic.WGS84.Inverse(p["lat2"], p["lon2"], lat, lon)
+        t = math.radians(inv["azi1"] - p["azi2"])
+        return math.cos(t), math.copysign(inv["s12"], math.sin(t))
+
+    grid = np.linspace(mid - 2 * math.pi * WGS84.a, mid + 2 * math.pi * WGS84.a, scan)
+    d = np.array([abs(at(s)[1]) for s in grid])
+    feet = []
+    for k in range(1, scan - 1):
+        if d[k] <= d[k - 1] and d[k] <= d[k + 1]:
+            lo, hi = grid[k - 1], grid[k + 1]
+            while hi - lo > 1e-6:
+                m = 0.5 * (lo + hi)
+                lo, hi = (m, hi) if at(m)[0] > 0 else (lo, m)
+            s = 0.5 * (lo + hi)
+            feet.append((s, at(s)[1]))
+    return feet
+
+
+def test_far_feet_of_random_legs_against_geographiclib():
+    """Random legs, positions 100-170 degrees of arc from the leg's middle (beyond 90 degrees
+    of every point of the leg for most): the foot taken is, of the candidates (one per turn
+    of the line), the one nearest the middle along the line; batch and scalar agree."""
+    rng = np.random.default_rng(20261202)
+    checked = 0
+    while checked < 10:
+        la1, la2 = rng.uniform(-80, 80, 2)
+        lo1, lo2 = rng.uniform(-180, 180, 2)
+        row = (float(la1), float(lo1), float(la2), float(lo2))
+        leg = GreatCircleLeg(*row)
+        if leg.distance_m > 15e6:
+            continue
+        m = Geodesic.WGS84.InverseLine(*row).Position(0.5 * leg.distance_m)
+        p = Geodesic.WGS84.ArcDirect(m["lat2"], m["lon2"], float(rng.uniform(0, 360)),
+                                     float(rng.uniform(100, 170)))
+        lat, lon = p["lat2"], (p["lon2"] + 180.0) % 360.0 - 180.0
+        feet = _feet_geographiclib(row, lat, lon)
+        near = sorted(feet, key=lambda f: abs(f[0] - 0.5 * leg.distance_m))
+        if len(near) > 1 and abs(abs(near[0][0] - 0.5 * leg.distance_m)
+                                 - abs(near[1][0] - 0.5 * leg.distance_m)) < 1.0:
+            continue  # two candidates as near (within 1 m): either is right
+        s_ref, x_ref = near[0]
+        xb, ab = leg.offsets_np([lat], [lon])
+        xs, als = leg.offset(lat, lon)
+        for x, s in ((xb[0], ab[0]), (xs, als)):
+            assert s == pytest.approx(s_ref, abs=OFFSET_TOL_M), (row, lat, lon, feet, s)
+            assert x == pytest.approx(x_ref, abs=OFFSET_TOL_M), (row, lat, lon, feet, x)
+        checked += 1

@@ -202,16 +202,121 @@ def test_a_shift_in_longitude_changes_nothing(la1, lo1, la2, dlon, dla, dlo, shi
         (xa, xb, sa, sb)
 
 
-@pytest.mark.xfail(strict=True, reason="open finding (docs/reliability.md): near the antipode "
-                   "of a great-circle leg's middle the along-track distance of a point on the "
-                   "extended line flips to the far side")
 def test_along_track_is_taken_the_near_way_round_the_circle():
+    # Regression (docs/reliability.md): near the antipode of a great-circle leg's middle the
+    # along-track of a point on the extended line flipped to the far side (the equator
+    # geodesic closes after 2 pi a, one turn in arc is 2 pi b: the foot was taken one turn
+    # the long way round). Now the foot nearest the leg's middle along the line is taken.
+    from geographiclib.geodesic import Geodesic
+
     lg = make_leg(0.0, 0.0, 0.0, 10.0, "great-circle")
     circumference = 2 * HALF_EQUATOR_M
+    line = Geodesic.WGS84.InverseLine(0.0, 0.0, 0.0, 10.0)
     for lon in (-174.9, -174.5, -175.1, -175.5):
         _xte, along = lg.offset(0.0, lon)
         # measured from the leg's middle, a point on the line is within half the circle
         assert abs(along - lg.distance_m / 2) <= circumference / 2 + 1e-6, (lon, along)
+        # geographiclib (GeodesicLine.Position): the line at that along-track is the point
+        p = line.Position(along)
+        assert abs(p["lat2"]) < 1e-9 and _course_close(p["lon2"], lon, 1e-9), (lon, p)
+        xb, ab = lg.offsets_np([0.0], [lon])
+        assert abs(ab[0] - along) < 1e-6 and abs(xb[0]) < 1e-6
+
+
+# reference for the foot nearest the leg's middle, from geographiclib alone (InverseLine for
+# the line extended, Inverse for the distance and azimuth from a point of it to the position)
+
+def _perp_cos(line, s, lat, lon):
+    """cos of the angle at the line's point ``s`` between the line and the geodesic to the
+    position, and that geodesic's length and signed side (geographiclib Position/Inverse)."""
+    from geographiclib.geodesic import Geodesic
+
+    p = line.Position(s)
+    inv = Geodesic.WGS84.Inverse(p["lat2"], p["lon2"], lat, lon)
+    t = math.radians(inv["azi1"] - p["azi2"])
+    return math.cos(t), inv["s12"], math.copysign(inv["s12"], math.sin(t))
+
+
+def _feet_by_geographiclib(lat1, lon1, lat2, lon2, lat, lon, turns=0.75, scan=600):
+    """Every foot of the position on the line extended ``turns`` of a turn either side of
+    the leg's middle: local minima of the distance on a scan, then bisection on the right
+    angle to 1e-6 m. Returns [(along_m, xte_m)]."""
+    from geographiclib.geodesic import Geodesic
+
+    line = Geodesic.WGS84.InverseLine(lat1, lon1, lat2, lon2)
+    mid = 0.5 * line.s13
+    span = turns * 2 * HALF_EQUATOR_M
+    grid = np.linspace(mid - span, mid + span, scan)
+    d = np.array([_perp_cos(line, s, lat, lon)[1] for s in grid])
+    feet = []
+    for k in range(1, scan - 1):
+        if d[k] <= d[k - 1] and d[k] <= d[k + 1]:
+            lo, hi = grid[k - 1], grid[k + 1]
+            assert _perp_cos(line, lo, lat, lon)[0] > 0 > _perp_cos(line, hi, lat, lon)[0]
+            while hi - lo > 1e-6:
+                m = 0.5 * (lo + hi)
+                if _perp_cos(line, m, lat, lon)[0] > 0:
+                    lo = m
+                else:
+                    hi = m
+            s = 0.5 * (lo + hi)
+            feet.append((s, _perp_cos(line, s, lat, lon)[2]))
+    return feet
+
+
+#: legs whose middle's antipode is probed: equator, oblique, meridian, high latitude, long
+WRAP_LEGS = [(0.0, 0.0, 0.0, 10.0), (30.0, -40.0, 45.0, -10.0), (10.0, 20.0, 60.0, 20.0),
+             (70.0, -150.0, 72.0, 120.0), (-35.0, 18.0, -20.0, 115.0)]
+
+
+@pytest.mark.parametrize("leg_row", WRAP_LEGS)
+def test_far_foot_is_the_one_nearest_the_leg_middle_against_geographiclib(leg_row):
+    """Positions about the antipode of the leg's middle (more than 90 degrees from every point
+    of the leg): the foot taken is, of the line's candidate feet (one per turn), the one
+    nearest the middle along the line, as found from geographiclib alone; batch and scalar
+    agree."""
+    from geographiclib.geodesic import Geodesic
+
+    lg = make_leg(*leg_row, "great-circle")
+    line = Geodesic.WGS84.InverseLine(*leg_row)
+    mid = 0.5 * lg.distance_m
+    rows = []
+    for k, (dx, off) in enumerate(((-300e3, 0.0), (-40e3, 150e3), (-1e3, -2e3), (5e3, 500e3),
+                                   (1e3, 40e3), (40e3, -150e3), (300e3, 1000e3))):
+        # a point near half a turn from the middle, then off to a side (geographiclib Direct)
+        base = line.Position(mid + HALF_EQUATOR_M + dx)
+        q = Geodesic.WGS84.Direct(base["lat2"], base["lon2"], base["azi2"] + 90.0, off)
+        rows.append((q["lat2"], _wrap(q["lon2"])))
+    lats, lons = np.array(rows).T
+    xb, ab = lg.offsets_np(lats, lons)
+    for i, (lat, lon) in enumerate(rows):
+        feet = _feet_by_geographiclib(*leg_row, lat, lon)
+        assert len(feet) >= 2, (lat, lon, feet)  # a candidate either side of the cut
+        s_ref, x_ref = min(feet, key=lambda f: abs(f[0] - mid))
+        xs, als = lg.offset(lat, lon)
+        for x, s in ((xs, als), (xb[i], ab[i])):
+            assert s == pytest.approx(s_ref, abs=1e-3), (leg_row, lat, lon, feet, s)
+            assert x == pytest.approx(x_ref, abs=1e-3), (leg_row, lat, lon, feet, x)
+
+
+@pytest.mark.parametrize("leg_row", WRAP_LEGS)
+def test_along_track_is_continuous_within_90_degrees_of_the_leg(leg_row):
+    """Positions swept round a ring 85 degrees of arc about the leg's middle (each within 90
+    degrees of the leg) in steps of about 60 km: along-track and XTE never jump (a jump at the
+    cut would be a whole turn, some 40,000 km); only beyond 90 degrees is there a cut."""
+    from geographiclib.geodesic import Geodesic
+
+    lg = make_leg(*leg_row, "great-circle")
+    m = Geodesic.WGS84.InverseLine(*leg_row).Position(0.5 * lg.distance_m)
+    ring = [Geodesic.WGS84.ArcDirect(m["lat2"], m["lon2"], az, 85.0) for az in
+            np.arange(0.0, 360.0, 0.5)]
+    lats = np.array([r["lat2"] for r in ring])
+    lons = np.array([_wrap(r["lon2"]) for r in ring])
+    xte, along = lg.offsets_np(lats, lons)
+    step = np.abs(np.diff(np.append(along, along[0])))
+    # the foot moves at most 1/sin(5 deg) ~ 11.5 times as fast as the position here
+    assert step.max() < 1_000_000, (leg_row, step.max())
+    assert np.abs(np.diff(np.append(xte, xte[0]))).max() < 1_000_000
 
 
 # ---------------------------------------------------------------------------------------------
