@@ -7,9 +7,13 @@ flight.
     python scripts/crash_test.py --kills 20 --lines 200000 --seed 1   # the long form
     python scripts/crash_test.py --kills 5 --lines 20000              # a quick look
 
-Seeded: the same seed kills at the same offsets into each run. Only 127.0.0.1 is used;
-every process started is killed and reaped before the next starts. Prints one line per
-kill and a JSON summary; exit status 1 when any check failed.
+Import kills fall inside the import: a first, unkilled import measures how long its write
+transaction lasts (the logbook's write lock seen taken, then released), and each kill run
+waits for its own import to take the lock and kills it a moment drawn uniformly inside that
+duration. Feed kills fall uniformly within the first seconds of logging. Seeded: the same
+seed draws the same offsets. Only 127.0.0.1 is used; every process started is killed and
+reaped before the next starts. Prints one line per kill, a JSON summary and how many kills
+landed mid-import and mid-feed; exit status 1 when any check failed.
 """
 
 from __future__ import annotations
@@ -18,6 +22,7 @@ import argparse
 import json
 import random
 import socket
+import subprocess
 import sys
 import tempfile
 import threading
@@ -42,6 +47,13 @@ class Result:
     doubled: int = 0
     problems: list = field(default_factory=list)
     seconds: float = 0.0
+    #: kills that found the process at work: an import inside its write transaction, not
+    #: yet committed; a feed running and logging (at least one fix of the run stored)
+    mid_run: int = 0
+    #: import: the unkilled run's phases (seconds from process start); kill offsets into
+    #: the write transaction. feed: seconds from process start to each kill
+    calibration: dict = field(default_factory=dict)
+    kill_delays: list = field(default_factory=list)
 
     @property
     def ok(self) -> bool:
@@ -64,8 +76,36 @@ def check_logbook(db: Path, result: Result, what: str) -> None:
 # import
 
 
+def time_import(db: Path, path: Path, voyage: str) -> tuple[dict, subprocess.Popen, str]:
+    """One import run to its end, watched: seconds from the start of the process to the
+    moment its write transaction was seen to begin (the logbook's write lock taken), to the
+    commit (the lock released) and to the exit."""
+    probe = rc.lock_probe(db)
+    try:
+        t0 = time.monotonic()
+        proc = rc.start(db, "import", str(path), "--voyage", voyage, "-q")
+        try:
+            t_begin = rc.wait_lock(probe, proc, held=True)
+            t_commit = rc.wait_lock(probe, proc, held=False) if t_begin else None
+            _out, err = proc.communicate(timeout=300)
+        finally:
+            if proc.poll() is None:
+                rc.reap(proc)
+        t_exit = time.monotonic()
+    finally:
+        probe.close()
+    rel = (lambda t: None if t is None else round(t - t0, 3))  # noqa: E731
+    return {"begin_s": rel(t_begin), "commit_s": rel(t_commit), "exit_s": rel(t_exit)}, \
+        proc, err
+
+
 def crash_imports(work: Path, kills: int, lines: int, rng: random.Random,
                   log=print) -> Result:
+    """A first import, not killed, measures how long its write transaction lasts (from the
+    write lock taken to the commit). Each kill run then waits until its own import has taken
+    the lock and kills it a moment drawn uniformly inside that measured duration, so the
+    kills fall during the import. A kill that finds the import committed (this run was
+    quicker) counts as after the commit."""
     result = Result("import")
     started = time.monotonic()
     db = work / "import.sqlite"
@@ -73,46 +113,60 @@ def crash_imports(work: Path, kills: int, lines: int, rng: random.Random,
     rc.make_logbook(db, voyages, with_plan=False)
     base = work / "base.nmea"
     expected = rc.write_nmea_log(base, lines)
-    # calibration: one whole import, timed (also the count a whole import gives)
     calib = work / "imp-0.nmea"
     rc.tagged_copy(base, calib, "run 0")
-    t = time.monotonic()
-    done = rc.run(db, "import", str(calib), "--voyage", "imp-0", "-q")
-    full_s = time.monotonic() - t
-    if done.returncode != 0 or rc.count_fixes(db, "imp-0") != expected:
-        result.problems.append(f"calibration import failed: {done.stderr.strip()[:300]}")
+    phases, done, err = time_import(db, calib, "imp-0")
+    result.calibration = phases
+    if (done.returncode != 0 or rc.count_fixes(db, "imp-0") != expected
+            or phases["begin_s"] is None or phases["commit_s"] is None):
+        result.problems.append(f"calibration import failed: {phases} {err.strip()[:300]}")
         return result
-    log(f"import of {lines} lines ({expected} fixes) takes {full_s:.1f} s whole")
-    for k in range(1, kills + 1):
-        name = f"imp-{k}"
-        path = work / f"{name}.nmea"
-        rc.tagged_copy(base, path, f"run {k}")
-        delay = rng.uniform(0.05, full_s * 1.1)  # some kills land after the commit
-        proc = rc.start(db, "import", str(path), "--voyage", name, "-q")
-        try:
-            time.sleep(delay)
-            finished_first = proc.poll() is not None
-        finally:
-            _out, err = rc.reap(proc)  # SIGKILL if still running
-        result.kills += 1
-        n = rc.count_fixes(db, name)
-        recorded = path.name in rc.imports_named(db)
-        if n == expected and recorded:
-            state = "whole"
-            result.completed_before_kill += 1
-        elif n == 0 and not recorded:
-            state = "absent"
-            result.absent_after_kill += 1
-        else:
-            state = f"PARTIAL ({n} of {expected} fixes, import record {recorded})"
-            result.partial += 1
-            result.problems.append(f"kill {k}: {state}")
-        if finished_first and proc.returncode not in (0,):
-            result.problems.append(f"kill {k}: import ended by itself with exit "
-                                   f"{proc.returncode}: {err.strip()[:300]}")
-        check_logbook(db, result, f"import kill {k}")
-        log(f"import kill {k:2d} at {delay:5.2f} s: {state}")
-        path.unlink()
+    txn_s = phases["commit_s"] - phases["begin_s"]
+    log(f"import of {lines} lines ({expected} fixes): write transaction from "
+        f"{phases['begin_s']:.2f} s to {phases['commit_s']:.2f} s ({txn_s:.2f} s), "
+        f"exit at {phases['exit_s']:.2f} s")
+    probe = rc.lock_probe(db)
+    try:
+        for k in range(1, kills + 1):
+            name = f"imp-{k}"
+            path = work / f"{name}.nmea"
+            rc.tagged_copy(base, path, f"run {k}")
+            delay = rng.uniform(0.0, txn_s)
+            proc = rc.start(db, "import", str(path), "--voyage", name, "-q")
+            try:
+                t_begin = rc.wait_lock(probe, proc, held=True)
+                if t_begin is not None:
+                    time.sleep(max(0.0, t_begin + delay - time.monotonic()))
+                finished_first = proc.poll() is not None
+            finally:
+                _out, err = rc.reap(proc)  # SIGKILL if still running
+            result.kills += 1
+            result.kill_delays.append(round(delay, 3))
+            n = rc.count_fixes(db, name)
+            recorded = path.name in rc.imports_named(db)
+            if n == expected and recorded:
+                state = "whole (killed after the commit)"
+                result.completed_before_kill += 1
+            elif n == 0 and not recorded:
+                state = "absent (killed mid-import)"
+                result.absent_after_kill += 1
+            else:
+                state = f"PARTIAL ({n} of {expected} fixes, import record {recorded})"
+                result.partial += 1
+                result.problems.append(f"kill {k}: {state}")
+            if t_begin is None:
+                result.problems.append(f"kill {k}: the import's write transaction was not "
+                                       "seen to begin")
+            elif not finished_first and n == 0:
+                result.mid_run += 1
+            if finished_first and proc.returncode not in (0,):
+                result.problems.append(f"kill {k}: import ended by itself with exit "
+                                       f"{proc.returncode}: {err.strip()[:300]}")
+            check_logbook(db, result, f"import kill {k}")
+            log(f"import kill {k:2d} {delay:5.2f} s into the transaction: {state}")
+            path.unlink()
+    finally:
+        probe.close()
     result.seconds = round(time.monotonic() - started, 1)
     return result
 
@@ -121,13 +175,19 @@ def crash_imports(work: Path, kills: int, lines: int, rng: random.Random,
 # feed
 
 
+#: Feed kills fall uniformly within this many seconds after the feed began logging.
+FEED_LOGGING_S = 3.0
+
+
 def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
-               max_fixes: int = 400) -> Result:
+               max_fixes: int = 5000) -> Result:
     """Per kill: start the feed on a fresh UDP port, send fixes one minute of fix time apart
     (``--every 1``: each is logged), each only after the one before it is in the logbook
-    (stop and wait), SIGKILL at a random moment, then compare what was sent with what was
-    stored. The feed logs an epoch when the next sentence closes it, so the last sentence
-    sent is never a fix yet; the one before it may be the write in flight."""
+    (stop and wait), SIGKILL at a moment drawn uniformly within :data:`FEED_LOGGING_S`
+    after the first fix is stored (so every kill falls while the feed is logging), then
+    compare what was sent with what was stored. The feed logs an epoch when the next
+    sentence closes it, so the last sentence sent is never a fix yet; the one before it may
+    be the write in flight."""
     result = Result("feed")
     started = time.monotonic()
     db = work / "feed.sqlite"
@@ -141,7 +201,10 @@ def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
                         "--every", "1", "--course-change", "0", "-q")
         sent: list[str] = []
         sender = socket.socket(socket.AF_INET, socket.SOCK_DGRAM)
-        kill_at = time.monotonic() + rng.uniform(0.8, 4.0)
+        t_start = time.monotonic()
+        logging_s = rng.uniform(0.0, FEED_LOGGING_S)  # kill this long after logging began
+        kill_at = None
+        running = False
         stop = threading.Event()
         try:
             # the process needs a moment to bind: repeat the first sentence until it shows
@@ -153,6 +216,7 @@ def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
                     sender.sendto(rc.rmc(t, lat, lon).encode(), (rc.LOOPBACK, port))
                 time.sleep(0.05)
             sent = [rc.track_point(fix_index + i, 60.0)[0] for i in (0, 1)]
+            kill_at = time.monotonic() + logging_s
             i = 2
             while time.monotonic() < kill_at and proc.poll() is None and i < max_fixes:
                 # stop and wait: fix i-1 closes (and is logged) when sentence i arrives
@@ -163,11 +227,16 @@ def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
                 while wait and time.monotonic() < kill_at and rc.count_fixes(db, voyage) < i:
                     time.sleep(0.002)
                 i += 1
+            if kill_at is not None:
+                time.sleep(max(0.0, kill_at - time.monotonic()))
+            running = proc.poll() is None
         finally:
             stop.set()
             sender.close()
+            t_kill = time.monotonic() - t_start
             _out, err = rc.reap(proc)
         result.kills += 1
+        result.kill_delays.append(round(t_kill, 3))
         fix_index += len(sent) + 1
         stored = rc.fix_times(db, voyage)
         sent_text = [s.strftime("%Y-%m-%dT%H:%M:%SZ") for s in sent]
@@ -185,8 +254,13 @@ def crash_feed(work: Path, kills: int, rng: random.Random, log=print,
                                    f"stored (at most the open epoch and the write in flight)")
         if proc.returncode not in (-9, 0):
             result.problems.append(f"feed kill {k}: exit {proc.returncode}: {err[-300:]}")
+        if running and stored:
+            result.mid_run += 1
+        else:
+            result.problems.append(f"feed kill {k}: the feed was not logging at the kill")
         check_logbook(db, result, f"feed kill {k}")
-        log(f"feed kill {k:2d}: sent {len(sent)}, stored {len(stored)} (lost {lost})")
+        log(f"feed kill {k:2d} at {t_kill:4.2f} s ({logging_s:4.2f} s of logging): sent "
+            f"{len(sent)}, stored {len(stored)} (lost {lost})")
     result.seconds = round(time.monotonic() - started, 1)
     return result
 
@@ -211,6 +285,9 @@ def main(argv: list[str] | None = None) -> int:
     summary = {"seed": args.seed, "lines": args.lines,
                "results": [dict(asdict(r), ok=r.ok) for r in results]}
     print(json.dumps(summary, indent=2))
+    for r in results:
+        where = "mid-import" if r.kind == "import" else "mid-feed"
+        print(f"{r.kind}: {r.kills} kills, {r.mid_run} {where}, {r.seconds} s", file=sys.stderr)
     return 0 if all(r.ok for r in results) else 1
 
 

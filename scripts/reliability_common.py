@@ -130,6 +130,41 @@ def integrity_check(db: Path) -> str:
         conn.close()
 
 
+def lock_probe(db: Path) -> sqlite3.Connection:
+    """A connection for :func:`write_lock_held`: no busy wait, autocommit."""
+    return sqlite3.connect(db, timeout=0, isolation_level=None)
+
+
+def write_lock_held(probe: sqlite3.Connection) -> bool:
+    """Whether another connection holds the logbook's write lock right now (an import's
+    transaction, say): ``BEGIN IMMEDIATE`` with no busy wait fails then. When it succeeds
+    the empty transaction is rolled back at once (the lock is held some microseconds; a
+    writer that meets it waits in its busy handler, it does not fail)."""
+    try:
+        probe.execute("BEGIN IMMEDIATE")
+    except sqlite3.OperationalError as exc:
+        if "locked" in str(exc) or "busy" in str(exc):
+            return True
+        raise
+    probe.execute("ROLLBACK")
+    return False
+
+
+def wait_lock(probe: sqlite3.Connection, proc: subprocess.Popen, held: bool,
+              seconds: float = 120.0, poll_s: float = 0.002) -> float | None:
+    """Wait until the write lock is ``held`` (or released, ``held=False``) while ``proc``
+    runs: the monotonic time it was first seen so, or None if ``proc`` ended first or the
+    time ran out."""
+    end = time.monotonic() + seconds
+    while time.monotonic() < end:
+        if write_lock_held(probe) == held:
+            return time.monotonic()
+        if proc.poll() is not None:
+            return None
+        time.sleep(poll_s)
+    return None
+
+
 def fix_times(db: Path, voyage: str) -> list[str]:
     """The stored fix times of a voyage (text as stored), in id order, read directly."""
     conn = sqlite3.connect(f"file:{db}?mode=ro", uri=True, timeout=30)
