@@ -1,16 +1,22 @@
-"""The Log view: enter a fix, see the fix list, correct a fix, keep log entries.
+"""The Log view: enter a fix, page through the fix list, correct a fix, keep log entries.
 
 Each field of the fix form is checked as you type, with the reason beside it; Ctrl+S logs
-the fix (or, on the Entries tab, adds the entry) when every field is good. The time defaults to now (UTC); ship's time is accepted
-with its zone (``2026-05-02T11:50 ZD+1``). In the fix list suspects (implausible speed from
-the previous fix) and corrections are marked, and a corrected original stays, struck
-through. Enter on a fix opens the correction dialog.
+the fix (or, on the Entries tab, adds the entry) when every field is good. The time defaults
+to now (UTC); ship's time is accepted with its zone (``2026-05-02T11:50 ZD+1``). In the fix
+list suspects (implausible speed from the previous fix) and corrections are marked, and a
+corrected original stays, struck through. Enter on a fix opens the correction dialog.
 
-The fix list shows the latest :data:`SHOWN_FIXES` records; it is read in a worker the first
-time the view is shown, so a big logbook does not slow the start.
+The fix list covers the whole voyage, every record in time order (the latest at the
+bottom), but holds only the rows on show plus a margin each side (:func:`window_rows`):
+PageUp/PageDown, the arrows, Home/End and Ctrl+G (go to a time in UTC) read the next rows
+with keyset queries, so a list of a million fixes opens as fast as one of ten. The header
+above it says which records are on show ("fixes 981–1,000 of 1,000").
 """
 
 from __future__ import annotations
+
+import re
+from datetime import datetime, timezone
 
 from rich.text import Text
 from textual import on, work
@@ -19,21 +25,137 @@ from textual.binding import Binding
 from textual.containers import Grid, Vertical
 from textual.widgets import DataTable, Input, Label, Select, Static, TabbedContent, TabPane
 
-from passagelog.errors import PassagelogError
+from passagelog.errors import InputError, PassagelogError
 from passagelog.model import ENTRY_KINDS, FIX_METHODS, Fix, LogEntry
 from passagelog.tui import text as fmt
 
-SHOWN_FIXES = 200
 SHOWN_ENTRIES = 200
+#: Fix rows read beyond those on show, on each side (at least a page).
+MARGIN_ROWS = 20
+#: Satellites in use: the form takes what a receiver reports (NMEA GGA has two digits).
+MAX_FORM_SATELLITES = 99
 
 FIX_FIELDS = (
     ("time", "Time", "now (UTC) if empty"),
     ("pos", "Position", "e.g. 47 36.512N 122 20.107W"),
     ("hdop", "HDOP", "optional"),
+    ("sats", "Sats", "optional: satellites in use, 0-99"),
     ("cog", "COG °T", "optional"),
     ("sog", "SOG kn", "optional"),
     ("remarks", "Remarks", "optional"),
 )
+FORM_FIELDS = tuple(fid for fid, _l, _p in FIX_FIELDS)
+#: entry kinds that say nothing without their text
+TEXT_REQUIRED = ("event", "remark")
+
+
+def window_rows(page: int) -> int:
+    """Fix rows held in the list: the page on show and a margin each side."""
+    return page + 2 * max(page, MARGIN_ROWS)
+
+
+def page_head(first: int, last: int, total: int, span: tuple[datetime, datetime] | None = None,
+              width: int = 200) -> str:
+    """The line above the fix list: which records are on show (1-based places in time
+    order), the dates they span and the keys that page, as much as fits in ``width``."""
+    if total == 0:
+        return "No fixes in this voyage yet: log one with the form above (Ctrl+S)."
+    text = f"Fixes {first:,}–{last:,} of {total:,}, oldest first"
+    extras = []
+    if span is not None:
+        a, b = (t.astimezone(timezone.utc).date().isoformat() for t in span)
+        extras.append(f"{a} UTC" if a == b else f"{a} to {b} UTC")
+    extras.append("PgUp PgDn Home End")
+    for extra in extras:
+        if len(text) + 3 + len(extra) <= width:
+            text += " · " + extra
+    return text
+
+
+def parse_goto_time(text: str, ref: datetime | None) -> datetime:
+    """A time to go to in the fix list, in UTC: full ISO 8601 (a zone in the text wins,
+    none means UTC), or day and time as the list shows it (``02 14:30Z``), or just
+    ``14:30`` (on the day of ``ref``, the fix under the cursor)."""
+    from passagelog.nav.zonetime import parse_time_utc
+
+    t = text.strip()
+    if not t:
+        raise InputError("type a time in UTC, e.g. 2026-05-02T14:30Z, 02 14:30Z or 14:30")
+    m = re.fullmatch(r"(?:(\d{1,2})\s+)?(\d{1,2}):?(\d{2})\s*(?:Z|UTC)?", t, re.IGNORECASE)
+    if m is None:
+        return parse_time_utc(t, 0)
+    ref = (ref or datetime.now(timezone.utc)).astimezone(timezone.utc)
+    day, hour, minute = (int(m[1]) if m[1] else ref.day), int(m[2]), int(m[3])
+    if hour > 23 or minute > 59:
+        raise InputError(f"time {text!r}: hours run 00-23 and minutes 00-59")
+    try:
+        return ref.replace(day=day, hour=hour, minute=minute, second=0, microsecond=0)
+    except ValueError:
+        raise InputError(f"time {text!r}: day {day} is not in "
+                         f"{ref:%Y-%m}; give the full date, e.g. {ref:%Y-%m}-{day:02d}T"
+                         f"{hour:02d}:{minute:02d}Z") from None
+
+
+def entry_zones(entries: list[LogEntry], voyage_zd: int,
+                now: datetime) -> tuple[list[int], int]:
+    """The zone (minutes) in force at each of ``entries`` (in time order) and at ``now``:
+    the voyage's, changed by every current clock-change entry at or before that time (as
+    the logbook's ``zone_at``)."""
+    gone = {e.supersedes for e in entries if e.supersedes is not None}
+    changes = [(e.time_utc, e.zd_minutes) for e in entries
+               if e.kind == "clock-change" and e.entry_id not in gone
+               and e.zd_minutes is not None]
+
+    def at(when: datetime) -> int:
+        zd = voyage_zd
+        for t, new in changes:
+            if t <= when:
+                zd = new
+        return zd
+
+    return [at(e.time_utc) for e in entries], at(now)
+
+
+class FixTable(DataTable):
+    """The fix list: the arrows and page keys read more rows at the ends of what is held."""
+
+    BINDINGS = [
+        Binding("enter", "select_cursor", "Correct fix"),
+        Binding("home,ctrl+home", "first", "First fix", show=False),
+        Binding("end,ctrl+end", "last", "Latest fix", show=False),
+    ]
+
+    def _pager(self) -> "LogView":
+        return next(a for a in self.ancestors if isinstance(a, LogView))
+
+    def page_rows(self) -> int:
+        height = self.scrollable_content_region.height - (
+            self.header_height if self.show_header else 0)
+        return max(height, 1)
+
+    def action_cursor_down(self) -> None:
+        self._pager().move_by(1)
+
+    def action_cursor_up(self) -> None:
+        self._pager().move_by(-1)
+
+    def action_page_down(self) -> None:
+        self._pager().move_by(self.page_rows())
+
+    def action_page_up(self) -> None:
+        self._pager().move_by(-self.page_rows())
+
+    def action_first(self) -> None:
+        self._pager().load(where="first")
+
+    def action_last(self) -> None:
+        self._pager().load(where="last")
+
+    def watch_scroll_y(self, old: float, new: float) -> None:
+        super().watch_scroll_y(old, new)
+        pager = next((a for a in self.ancestors if isinstance(a, LogView)), None)
+        if pager is not None:
+            pager.update_head()
 
 
 class LogView(Vertical):
@@ -41,19 +163,35 @@ class LogView(Vertical):
 
     BINDINGS = [
         Binding("ctrl+s", "record", "Record"),
+        Binding("ctrl+g", "goto_time", "Go to time"),
+        Binding("pageup", "page(-1)", "Page up", show=False),
+        Binding("pagedown", "page(1)", "Page down", show=False),
     ]
     PALETTE = (
         ("Log: log the fix in the form", "log_fix", "Check the form and log the fix (Ctrl+S)"),
         ("Log: correct the selected fix", "correct", "Open the correction dialog (Enter)"),
         ("Log: add the log entry", "add_entry", "Add the entry in the entry form (Ctrl+S)"),
+        ("Log: go to a time in the fix list", "goto_time",
+         "Show the fixes from a time in UTC (Ctrl+G)"),
+        ("Log: latest fixes", "latest", "Show the end of the fix list (End in the list)"),
+        ("Log: first fixes", "first", "Show the start of the fix list (Home in the list)"),
     )
 
     def __init__(self, session, **kwargs) -> None:
         super().__init__(**kwargs)
         self.session = session
+        #: the fix records held in the list, in time order (a window of the voyage's)
         self.shown: list[Fix] = []
+        #: 0-based place of ``shown[0]`` among the voyage's records; how many there are
+        self.first_place = 0
+        self.total = 0
+        #: record id -> id of the fix that corrects it, for the records held
+        self.corrected_by: dict[int, int] = {}
         self.loaded = False
         self.valid: dict[str, bool] = {}
+        #: the ship's zone now (the voyage's, changed by the clock changes logged): times
+        #: typed without a zone are taken as ship's time in it
+        self.zone_now: int = session.zd_minutes
 
     def compose(self) -> ComposeResult:
         with TabbedContent(id="log-tabs"):
@@ -71,7 +209,8 @@ class LogView(Vertical):
                         yield Label(label, classes="field-label")
                         yield Input(placeholder=placeholder, id=f"fix-{fid}", compact=True)
                         yield Static("", id=f"fix-{fid}-msg", classes="field-error")
-                yield DataTable(id="fix-table", cursor_type="row", zebra_stripes=True)
+                yield Static("Reading the fix list...", id="fix-head", classes="view-head")
+                yield FixTable(id="fix-table", cursor_type="row", zebra_stripes=True)
             with TabPane("Entries", id="log-entries"):
                 with Grid(id="entry-form"):
                     yield Label("Kind", classes="field-label")
@@ -88,6 +227,7 @@ class LogView(Vertical):
                     yield Label("Text", classes="field-label")
                     yield Input(placeholder="what happened", id="entry-text", compact=True)
                     yield Static("", id="entry-text-msg", classes="field-error")
+                yield Static("", id="entry-head", classes="view-head")
                 yield DataTable(id="entry-table", cursor_type="row", zebra_stripes=True)
 
     def on_mount(self) -> None:
@@ -99,56 +239,268 @@ class LogView(Vertical):
             entries.add_column(label, key=label)
         self.validate_fix_form()
 
+    def on_resize(self) -> None:
+        self.update_head()
+
     def on_show(self) -> None:
         if not self.loaded:
             self.loaded = True
             self.reload()
 
-    # --- the lists ---
+    # --- the fix list: a window of the voyage's records, read by keyset queries ---
+    def _page(self) -> int:
+        table = self.query_one("#fix-table", FixTable)
+        return table.page_rows() if table.size.height else 10
+
+    def reload(self, around: int | None = None) -> None:
+        """Read the list again: around record ``around`` if given, else its end; and the
+        log entries."""
+        if around is None:
+            self.load(where="last", entries=True)
+        else:
+            self.load(where="around", fix_id=around, entries=True)
+
+    def load(self, where: str = "last", *, fix_id: int | None = None,
+             when: datetime | None = None, entries: bool = False) -> None:
+        """Read a window of the fix list in a worker: the ``first`` or ``last`` records,
+        those ``around`` record ``fix_id`` or ``from`` time ``when``."""
+        # the page is measured here: widget geometry is not to be read in a worker thread
+        self._load(self._page(), where, fix_id, when, entries)
+
     @work(thread=True, exclusive=True, group="log-load")
-    def reload(self) -> None:
+    def _load(self, page: int, where: str, fix_id: int | None, when: datetime | None,
+              entries: bool) -> None:
         s = self.session
         if s.voyage is None:
             self.app.call_from_thread(self.notify, "No voyage in this logbook yet: nothing "
                                       "to log to. See 'passagelog --help'.", severity="warning")
+            self.app.call_from_thread(self.query_one("#fix-head", Static).update,
+                                      "No voyage is open.")
             return
+        size = window_rows(page)
+        margin = (size - page) // 2
+        note = None
         try:
-            fixes = s.fix_history()[-SHOWN_FIXES:]
-            entries = s.entry_history()[-SHOWN_ENTRIES:]
+            total = s.fix_record_count()
+            cursor = 0
+            if where == "first":
+                rows, place = s.fix_records_after(None, limit=size), 0
+            elif where in ("around", "from"):
+                if where == "around":
+                    ahead = s.fix_records_before(fix_id, limit=1) if fix_id else []
+                    rows = s.fix_records_after(ahead[0].fix_id if ahead else None,
+                                               limit=size - margin)
+                else:
+                    rows = s.fix_records_from(when, limit=size - margin)
+                if rows:
+                    before = s.fix_records_before(rows[0].fix_id, limit=margin)
+                    place = s.fix_record_rank(rows[0].fix_id) - len(before)
+                    cursor = len(before)
+                    rows = before + rows
+                else:
+                    if where == "from":
+                        note = (f"No fix at or after {fmt.utc_time(when)}: showing the "
+                                "latest.")
+                    rows = s.fix_records_before(None, limit=size)
+                    place, cursor = total - len(rows), len(rows) - 1
+            else:
+                rows = s.fix_records_before(None, limit=size)
+                place, cursor = total - len(rows), len(rows) - 1
+            corrected = s.corrections_of([f.fix_id for f in rows])
+            entry_rows = s.entry_history() if entries else None
         except PassagelogError as exc:
             self.app.call_from_thread(self.notify, str(exc), severity="error")
             return
-        self.app.call_from_thread(self._fill, fixes, entries)
+        # a fix gone to is shown at the top of the list (a logged or corrected one, mid-way)
+        top = None if where in ("first", "last") else max(
+            0, cursor - (page // 2 if where == "around" else 0))
+        self.app.call_from_thread(self._show_window, rows, place, total, corrected,
+                                  max(cursor, 0), top)
+        if entry_rows is not None:
+            self.app.call_from_thread(self._fill_entries, entry_rows)
+        if note:
+            self.app.call_from_thread(self.notify, note)
 
-    def _fill(self, fixes: list[Fix], entries: list[LogEntry]) -> None:
-        superseded = {f.supersedes for f in fixes if f.supersedes is not None}
-        table = self.query_one("#fix-table", DataTable)
+    def move_by(self, delta: int) -> None:
+        """Move the cursor ``delta`` rows (negative: up; a page keeps the cursor on its line
+        of the screen), reading more rows when it passes the ends of those held. These
+        reads are a keyset query of a few dozen rows (about a millisecond), done at once so
+        that held-down keys stay in step."""
+        table = self.query_one("#fix-table", FixTable)
+        if not self.shown:
+            return
+        rows, place = self.shown, self.first_place
+        page = table.page_rows()
+        target = table.cursor_row + delta
+        top = None
+        if abs(delta) > 1:
+            top = target - (table.cursor_row - int(table.scroll_y))
+        low = target if top is None else min(target, top)
+        high = target if top is None else max(target, top + page - 1)
+        if low >= 0 and high < len(rows):
+            if top is None:
+                table.move_cursor(row=target)
+            else:
+                self._place_cursor(target, top)
+            return
+        size = window_rows(page)
+        margin = (size - page) // 2
+        s = self.session
+        try:
+            if high >= len(rows):
+                more = s.fix_records_after(rows[-1].fix_id, limit=high - len(rows) + 1 + margin)
+                rows = rows + more
+            else:
+                more = s.fix_records_before(rows[0].fix_id, limit=-low + margin)
+                rows, place = more + rows, place - len(more)
+                target += len(more)
+                top = None if top is None else top + len(more)
+            if len(rows) > size:  # keep the rows around the cursor, drop the far end
+                start = max(0, min(target - size // 2, len(rows) - size))
+                rows, place, target = rows[start:start + size], place + start, target - start
+                top = None if top is None else top - start
+            target = max(0, min(target, len(rows) - 1))
+            if top is not None:
+                top = max(0, min(top, len(rows) - page))
+            if not more:  # at the first or the latest record
+                if top is None:
+                    table.move_cursor(row=target)
+                else:
+                    self._place_cursor(target, top)
+                return
+            corrected = s.corrections_of([f.fix_id for f in rows])
+        except PassagelogError as exc:
+            self.notify(str(exc), severity="error")
+            return
+        self._show_window(rows, place, max(self.total, place + len(rows)), corrected, target,
+                          top)
+
+    def _show_window(self, rows: list[Fix], place: int, total: int,
+                     corrected: dict[int, int], cursor: int, top: int | None) -> None:
+        """Put ``rows`` in the list with the cursor on row ``cursor`` (and row ``top`` at
+        the top of the list when given)."""
+        table = self.query_one("#fix-table", FixTable)
         table.clear()
-        self.shown = list(reversed(fixes))  # newest first
-        for f in self.shown:
-            gone = f.fix_id in superseded
-            marks = []
-            if f.supersedes is not None:
-                marks.append(f"corrects #{f.supersedes}: {f.reason or ''}".strip())
-            if f.suspect:
-                speed = f" {f.implied_speed_kn:.0f} kn" if f.implied_speed_kn else ""
-                marks.append(f"SUSPECT{speed}")
-            if gone:
-                marks.append("corrected")
-            style = "strike dim" if gone else ("bold" if f.suspect else "")
-            cells = [str(f.fix_id), fmt.utc_time(f.time_utc), fmt.position(f.lat, f.lon),
-                     f.method, "" if f.sog_kn is None else f"{f.sog_kn:.1f}",
-                     fmt.course(f.cog) if f.cog is not None else "", "; ".join(marks),
-                     f.remarks]
-            table.add_row(*(Text(c, style=style) for c in cells), key=str(f.fix_id))
+        self.shown, self.first_place, self.total = rows, place, total
+        self.corrected_by = corrected
+        for f in rows:
+            table.add_row(*self._cells(f), key=str(f.fix_id))
+        if rows:
+            self.call_after_refresh(self._place_cursor, cursor, top)
+        self.update_head()
+
+    def _place_cursor(self, cursor: int, top: int | None) -> None:
+        table = self.query_one("#fix-table", FixTable)
+        if not self.shown:
+            return
+        cursor = max(0, min(cursor, len(self.shown) - 1))
+        if top is not None:
+            table.scroll_to(y=max(0, top), animate=False, force=True, immediate=True)
+        # (scroll=True would first scroll to the row the cursor leaves)
+        table.move_cursor(row=cursor, scroll=top is None)
+        self.update_head()
+
+    def _cells(self, f: Fix) -> list[Text]:
+        gone = f.fix_id in self.corrected_by
+        marks = []
+        if f.supersedes is not None:
+            marks.append(f"corrects #{f.supersedes}: {f.reason or ''}".strip())
+        if f.suspect:
+            speed = f" {f.implied_speed_kn:.0f} kn" if f.implied_speed_kn else ""
+            marks.append(f"SUSPECT{speed}")
+        if gone:
+            marks.append(f"corrected by #{self.corrected_by[f.fix_id]}")
+        style = "strike dim" if gone else ("bold" if f.suspect else "")
+        cells = [str(f.fix_id), fmt.utc_time(f.time_utc), fmt.position(f.lat, f.lon),
+                 f.method, "" if f.sog_kn is None else f"{f.sog_kn:.1f}",
+                 fmt.course(f.cog) if f.cog is not None else "", "; ".join(marks),
+                 f.remarks]
+        return [Text(c, style=style) for c in cells]
+
+    def update_head(self) -> None:
+        """Say which records are on show (1-based places in time order)."""
+        table = self.query_one("#fix-table", FixTable)
+        head = self.query_one("#fix-head", Static)
+        if not self.shown:
+            head.update(page_head(0, 0, self.total))
+            return
+        top = max(0, min(int(table.scroll_y), len(self.shown) - 1))
+        bottom = min(len(self.shown), top + table.page_rows())
+        span = (self.shown[top].time_utc, self.shown[bottom - 1].time_utc)
+        width = (head.size.width - 2) if head.size.width else 200
+        head.update(page_head(self.first_place + top + 1, self.first_place + bottom,
+                              self.total, span, width))
+
+    def _fill_entries(self, entries: list[LogEntry]) -> None:
+        """Every entry record in time order (the latest :data:`SHOWN_ENTRIES`), ship's time
+        in the zone in force at each; corrected originals struck through."""
+        voyage_zd = self.session.zd_minutes
+        ordered = sorted(entries, key=lambda e: (e.time_utc, e.entry_id))
+        zones, self.zone_now = entry_zones(ordered, voyage_zd, self.session.now())
+        gone = {e.supersedes: e.entry_id for e in entries if e.supersedes is not None}
         etable = self.query_one("#entry-table", DataTable)
         etable.clear()
-        zd = self.session.zd_minutes
-        for e in reversed(entries):
+        shown = list(zip(ordered, zones))[-SHOWN_ENTRIES:]
+        for e, zd in shown:
             text = e.text + (f" (new ZD {fmt.zd_text(e.zd_minutes)})"
                              if e.zd_minutes is not None else "")
-            etable.add_row(str(e.entry_id), fmt.utc_time(e.time_utc),
-                           fmt.ship_time(e.time_utc, zd), e.kind, text)
+            if e.supersedes is not None:
+                text += f" [corrects #{e.supersedes}: {e.reason or ''}]"
+            if e.entry_id in gone:
+                text += f" [corrected by #{gone[e.entry_id]}]"
+            style = "strike dim" if e.entry_id in gone else ""
+            cells = (str(e.entry_id), fmt.utc_time(e.time_utc), fmt.ship_time(e.time_utc, zd),
+                     e.kind, text)
+            etable.add_row(*(Text(c, style=style) for c in cells))
+        if shown:
+            etable.move_cursor(row=len(shown) - 1)
+        head = self.query_one("#entry-head", Static)
+        if not entries:
+            head.update("No log entries yet: add one with the form above (Ctrl+S).")
+        else:
+            first = len(ordered) - len(shown) + 1
+            head.update(f"Entries {first:,}–{len(ordered):,} of {len(ordered):,}, oldest "
+                        f"first · ship's time in the zone then in force (now ZD "
+                        f"{fmt.zd_text(self.zone_now)})")
+        self.validate_fix_form()
+        self.validate_entry_form()
+
+    def _fixes_tab(self) -> bool:
+        return self.query_one("#log-tabs", TabbedContent).active == "log-fixes"
+
+    def action_page(self, direction: int) -> None:
+        """PageUp/PageDown from anywhere in the Fixes tab (the form's fields too)."""
+        if self._fixes_tab():
+            table = self.query_one("#fix-table", FixTable)
+            self.move_by(direction * table.page_rows())
+        else:
+            table = self.query_one("#entry-table", DataTable)
+            table.action_page_down() if direction > 0 else table.action_page_up()
+
+    def action_latest(self) -> None:
+        self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
+        self.load(where="last")
+
+    def action_first(self) -> None:
+        self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
+        self.load(where="first")
+
+    def action_goto_time(self) -> None:
+        from passagelog.tui.goto_dialog import GoToTimeDialog
+
+        if self.session.voyage is None:
+            self.notify("No voyage is open.", severity="warning")
+            return
+        self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
+        table = self.query_one("#fix-table", FixTable)
+        ref = self.shown[table.cursor_row].time_utc if self.shown else None
+
+        def done(when: datetime | None) -> None:
+            if when is not None:
+                table.focus()
+                self.load(where="from", when=when)
+
+        self.app.push_screen(GoToTimeDialog(ref), done)
 
     # --- the fix form ---
     @on(Input.Changed)
@@ -186,7 +538,7 @@ class LogView(Vertical):
             self._mark(f"fix-{fid}", ok_text(v) if v is not None else "", True)
             return v
 
-        zd = self.session.zd_minutes
+        zd = self.zone_now
         values["time"] = check(
             "time", lambda t: parse_time_utc(t, zd) if t.strip() else None,
             lambda v: f"{fmt.utc_time(v)}  ship {fmt.ship_time(v, zd)}")
@@ -199,8 +551,8 @@ class LogView(Vertical):
         else:
             self._mark("fix-pos", "required", True)  # not an error until Ctrl+S
             good = False
-        values["hdop"] = check("hdop", lambda t: parse_optional_number(
-            t, "HDOP", unit="", high=100.0), lambda v: "")
+        values["hdop"] = check("hdop", _hdop, lambda v: "")
+        values["sats"] = check("sats", _satellites, lambda v: f"{v} in use")
         values["cog"] = check("cog", lambda t: _course(t), lambda v: "")
         values["sog"] = check("sog", lambda t: parse_optional_number(
             t, "SOG", unit="kn", high=1000.0), lambda v: "")
@@ -212,8 +564,8 @@ class LogView(Vertical):
             lat, lon = values["pos"]
             return Fix(values["time"] or self.session.now(), lat, lon,
                        method=self.query_one("#fix-method", Select).value,
-                       hdop=values["hdop"], cog=values["cog"], sog_kn=values["sog"],
-                       remarks=values["remarks"])
+                       hdop=values["hdop"], satellites=values["sats"], cog=values["cog"],
+                       sog_kn=values["sog"], remarks=values["remarks"])
         except PassagelogError as exc:
             self._mark("fix-pos", str(exc), False)
             return None
@@ -230,6 +582,8 @@ class LogView(Vertical):
             self.notify("No voyage is open.", severity="warning")
             return
         fix = self.validate_fix_form()
+        if not self._field("pos").strip():
+            self._mark("fix-pos", "required: where the fix puts you", False)
         if fix is None:
             self.notify("The fix is not logged: see the fields marked beside them.",
                         severity="warning")
@@ -250,9 +604,9 @@ class LogView(Vertical):
         if saved.suspect:
             note += f" SUSPECT: implied speed {saved.implied_speed_kn:.0f} kn."
         self.notify(note, severity="warning" if saved.suspect else "information")
-        for fid in ("time", "pos", "hdop", "cog", "sog", "remarks"):
+        for fid in FORM_FIELDS:
             self.query_one(f"#fix-{fid}", Input).value = ""
-        self.reload()
+        self.reload(around=saved.fix_id)
 
     # --- corrections ---
     @on(DataTable.RowSelected, "#fix-table")
@@ -266,10 +620,14 @@ class LogView(Vertical):
         if not self.shown:
             self.notify("No fix to correct.")
             return
-        fix = self.shown[table.cursor_row]
-        superseded = {f.supersedes for f in self.shown if f.supersedes is not None}
-        if fix.fix_id in superseded:
-            self.notify(f"Fix {fix.fix_id} is already corrected; correct its correction.",
+        fix = self.shown[min(table.cursor_row, len(self.shown) - 1)]
+        later = self.corrected_by.get(fix.fix_id)
+        if later is not None:
+            held = [f.fix_id for f in self.shown]
+            if later in held:
+                table.move_cursor(row=held.index(later))
+            self.notify(f"Fix {fix.fix_id} is already corrected by fix {later}; to change "
+                        f"it again, correct fix {later} (Enter on its row).",
                         severity="warning")
             return
 
@@ -277,7 +635,7 @@ class LogView(Vertical):
             if result:
                 self._correct(fix.fix_id, *result)
 
-        self.app.push_screen(CorrectionDialog(fix, self.session.zd_minutes), done)
+        self.app.push_screen(CorrectionDialog(fix, self.zone_now), done)
 
     @work(thread=True, group="log-write")
     def _correct(self, fix_id: int, fix: Fix, reason: str) -> None:
@@ -287,13 +645,13 @@ class LogView(Vertical):
             self.app.call_from_thread(self.notify, str(exc), severity="error")
             return
         self.app.call_from_thread(self.notify, f"Fix {fix_id} corrected by fix {saved.fix_id}.")
-        self.app.call_from_thread(self.reload)
+        self.app.call_from_thread(self.reload, saved.fix_id)
 
     # --- log entries ---
     def validate_entry_form(self) -> LogEntry | None:
         from passagelog.nav.zonetime import parse_time_utc, parse_zd
 
-        zd = self.session.zd_minutes
+        zd = self.zone_now
         good = True
         t = None
         text_t = self.query_one("#entry-time", Input).value
@@ -317,7 +675,11 @@ class LogView(Vertical):
             self._mark("entry-zd", str(exc), False)
             good = False
         text = self.query_one("#entry-text", Input).value.strip()
-        self._mark("entry-text", "", True)
+        if not text and kind in TEXT_REQUIRED:
+            self._mark("entry-text", f"required: say what the {kind} is", True)
+            good = False  # shown as an error only when Ctrl+S is pressed
+        else:
+            self._mark("entry-text", "", True)
         if not good:
             return None
         try:
@@ -332,6 +694,9 @@ class LogView(Vertical):
 
     def action_add_entry(self) -> None:
         entry = self.validate_entry_form()
+        kind = self.query_one("#entry-kind", Select).value
+        if kind in TEXT_REQUIRED and not self.query_one("#entry-text", Input).value.strip():
+            self._mark("entry-text", f"required: say what the {kind} is", False)
         if entry is None:
             self.query_one("#log-tabs", TabbedContent).active = "log-entries"
             self.notify("The entry is not added: see the fields marked beside them.",
@@ -355,8 +720,35 @@ class LogView(Vertical):
         self.reload()
 
 
+def _hdop(text: str) -> float | None:
+    """Horizontal dilution of precision: a number 0-100 (no unit), or None if empty."""
+    t = text.strip()
+    if not t:
+        return None
+    try:
+        v = float(t)
+    except ValueError:
+        raise InputError(f"HDOP {t!r} is not a number (e.g. 0.9)") from None
+    if not 0.0 <= v <= 100.0:  # NaN fails this too
+        raise InputError(f"HDOP {t} must be from 0 to 100")
+    return v
+
+
+def _satellites(text: str) -> int | None:
+    """Satellites in use: a whole number 0-99, or None for an empty field."""
+    t = text.strip()
+    if not t:
+        return None
+    if not re.fullmatch(r"[0-9]+", t):
+        raise InputError(f"satellites {text.strip()!r} must be a whole number from 0 to "
+                         f"{MAX_FORM_SATELLITES}")
+    v = int(t)
+    if v > MAX_FORM_SATELLITES:
+        raise InputError(f"satellites {v}: at most {MAX_FORM_SATELLITES} in use")
+    return v
+
+
 def _course(text: str) -> float | None:
-    from passagelog.errors import InputError
     from passagelog.tui.plan_rows import parse_optional_number
 
     v = parse_optional_number(text, "COG", unit="°T", high=360.0)

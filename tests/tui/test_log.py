@@ -1,10 +1,18 @@
-"""Log: enter a fix with validation beside the field, see it listed, correct it, add an entry."""
+"""Log: enter a fix with validation beside the field, see it listed, correct it, add an entry;
+page through a long fix list reading only the rows on show and a margin."""
 
 from __future__ import annotations
 
-from datetime import datetime, timezone
+from datetime import datetime, timedelta, timezone
 
+import pytest
+
+from passagelog.errors import InputError
+from passagelog.model import Fix, LogEntry
 from passagelog.tui.app import PassagelogApp
+from passagelog.tui.log_view import entry_zones, page_head, parse_goto_time, window_rows
+
+T0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
 
 
 async def _type(pilot, app, field_id, text):
@@ -15,34 +23,55 @@ async def _type(pilot, app, field_id, text):
     await pilot.pause()
 
 
+async def _settle(pilot, app):
+    for _ in range(3):
+        await app.workers.wait_for_complete()
+        await pilot.pause()
+
+
+async def _open_log(pilot, app):
+    await pilot.press("f3")
+    await pilot.pause()
+    log = app.query_one("#log-view")
+    for _ in range(200):
+        await pilot.pause(0.01)
+        if log.shown or log.total == 0 and log.loaded and not app.workers:
+            break
+    await _settle(pilot, app)
+    return log
+
+
+def _head(app) -> str:
+    return str(app.query_one("#fix-head").render())
+
+
 async def test_log_a_fix_see_it_listed_and_correct_it(session):
     app = PassagelogApp(session=session, watch_poll_s=5.0)
     async with app.run_test(size=(100, 30)) as pilot:
-        await pilot.press("f3")
-        await pilot.pause()
-        log = app.query_one("#log-view")
+        log = await _open_log(pilot, app)
+        assert "No fixes in this voyage yet" in _head(app)
         # a position with minutes over 60 is refused beside the field
         await _type(pilot, app, "#fix-pos", "49 75.0N 6 30W")
-        await pilot.pause()
         msg = str(app.query_one("#fix-pos-msg").render())
         assert app.query_one("#fix-pos").has_class("-bad") and msg
         await _type(pilot, app, "#fix-pos", "49 45.0N 6 30.0W")
         await _type(pilot, app, "#fix-time", "2026-05-01T07:00 ZD+1")
-        await pilot.pause()
         # ship's time 07:00 at ZD +1 is 08:00 UTC (ZT + ZD = UTC)
         assert "01 08:00Z" in str(app.query_one("#fix-time-msg").render())
         await _type(pilot, app, "#fix-sog", "11.5")
+        await _type(pilot, app, "#fix-sats", "9")
+        assert "9 in use" in str(app.query_one("#fix-sats-msg").render())
         await pilot.press("ctrl+s")
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await _settle(pilot, app)
         fixes = session.fixes()
         assert len(fixes) == 1
         assert fixes[0].time_utc == datetime(2026, 5, 1, 8, 0, tzinfo=timezone.utc)
         assert abs(fixes[0].lat - 49.75) < 1e-12 and fixes[0].sog_kn == 11.5
+        assert fixes[0].satellites == 9
+        assert app.query_one("#fix-sats").value == ""  # the form is cleared
         table = app.query_one("#fix-table")
         assert table.row_count == 1
+        assert "Fixes 1–1 of 1, oldest first" in _head(app)
         # correct it: Enter on the row opens the dialog
         table.focus()
         await pilot.press("enter")
@@ -50,26 +79,190 @@ async def test_log_a_fix_see_it_listed_and_correct_it(session):
         from passagelog.tui.correction_dialog import CorrectionDialog
 
         assert isinstance(app.screen, CorrectionDialog)
-        pos = app.screen.query_one("#corr-pos")
-        pos.value = "49 46.0N 6 30.0W"
+        app.screen.query_one("#corr-pos").value = "49 46.0N 6 30.0W"
         app.screen.query_one("#corr-reason").focus()
         await pilot.press("enter")  # no reason yet: refused
         await pilot.pause()
         assert isinstance(app.screen, CorrectionDialog)
         app.screen.query_one("#corr-reason").value = "misread the latitude"
         await pilot.press("enter")
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await _settle(pilot, app)
         current = session.fixes()
         assert len(current) == 1 and abs(current[0].lat - (49 + 46 / 60)) < 1e-12
         assert current[0].reason == "misread the latitude"
-        assert table.row_count == 2  # the original stays, struck through
-        marks = [str(c) for c in table.get_row_at(1)]
-        assert "corrected" in " ".join(marks)
-        assert log.shown[0].supersedes == log.shown[1].fix_id
+        assert current[0].satellites == 9  # kept from the original
+        assert table.row_count == 2  # the original stays, struck through, just before
+        original, correction = log.shown
+        assert correction.supersedes == original.fix_id
+        marks = " ".join(str(c) for c in table.get_row_at(0))
+        assert f"corrected by #{correction.fix_id}" in marks
+        assert table.get_row_at(0)[0].style == "strike dim"
+        assert table.cursor_row == 1  # on the correction
+        # Enter on the corrected original: refused, the cursor goes to its correction
+        table.move_cursor(row=0)
+        await pilot.press("enter")
+        await pilot.pause()
+        assert not isinstance(app.screen, CorrectionDialog)
+        assert table.cursor_row == 1
+
+
+async def test_satellites_are_checked_beside_the_field(session):
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await _open_log(pilot, app)
+        await _type(pilot, app, "#fix-pos", "49 45.0N 6 30.0W")
+        for text, error in (("12.5", "whole number"), ("-1", "whole number"),
+                            ("100", "at most 99"), ("seven", "whole number")):
+            await _type(pilot, app, "#fix-sats", text)
+            assert app.query_one("#fix-sats").has_class("-bad"), text
+            assert error in str(app.query_one("#fix-sats-msg").render()), text
+            await pilot.press("ctrl+s")
+            await _settle(pilot, app)
+            assert session.fixes() == []  # nothing half-written
+        await _type(pilot, app, "#fix-sats", "0")
+        assert not app.query_one("#fix-sats").has_class("-bad")
+        await pilot.press("ctrl+s")
+        await _settle(pilot, app)
+        assert [f.satellites for f in session.fixes()] == [0]
+
+
+def _many_fixes(session, n: int, step_s: float = 60.0) -> list[datetime]:
+    times = [T0 + timedelta(seconds=step_s * i) for i in range(n)]
+    book = session.logbook
+    book.add_fixes(session.voyage.voyage_id,
+                   (Fix(t, 49.0 + i * 1e-4, -6.0, sog_kn=6.0) for i, t in enumerate(times)))
+    return times
+
+
+def _no_whole_voyage(monkeypatch, session):
+    """Fail loudly if the view reads every fix of the voyage."""
+    def refuse(*a, **k):
+        raise AssertionError("the Log view read the whole voyage")
+
+    for name in ("fixes", "fix_history", "fix_arrays"):
+        monkeypatch.setattr(session, name, refuse)
+
+
+async def test_the_fix_list_pages_through_the_whole_voyage(session, monkeypatch):
+    times = _many_fixes(session, 300, step_s=120.0)  # 06:00 to 15:58, one each 2 min
+    # fix 1 corrected by a fix far away in the list: still marked when shown
+    fix1 = session.logbook.fix(1)
+    later = session.correct_fix(1, Fix(fix1.time_utc + timedelta(seconds=1), 49.0, -6.001),
+                                "misplotted")
+    _no_whole_voyage(monkeypatch, session)
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        log = await _open_log(pilot, app)
+        table = app.query_one("#fix-table")
+        page = table.page_rows()
+        held = window_rows(page)
+        assert len(log.shown) <= held < 301  # the rows on show and a margin, no more
+        assert log.total == 301
+        # the end: the latest fix under the cursor, the header counts the records on show
+        assert log.shown[-1].time_utc == times[-1]
+        assert table.cursor_row == len(log.shown) - 1
+        assert _head(app).startswith(f"Fixes {301 - page + 1:,}–301 of 301, oldest first")
+        # PageUp many times: one page each, through several reads
+        table.focus()
+        for k in range(1, 6):
+            await pilot.press("pageup")
+            await pilot.pause()
+            assert _head(app).startswith(
+                f"Fixes {301 - (k + 1) * page + 1:,}–{301 - k * page:,} of 301"), k
+            assert len(log.shown) <= held
+        place = log.first_place + table.cursor_row  # 0-based place of the fix under the cursor
+        assert log.shown[table.cursor_row].time_utc == times[place - 1]  # one correction before
+        # Home: the first records; the corrected fix 1 is marked though its correction is not held
+        await pilot.press("home")
+        await _settle(pilot, app)
+        assert log.first_place == 0 and table.cursor_row == 0
+        assert _head(app).startswith(f"Fixes 1–{page} of 301")
+        assert [f.fix_id for f in log.shown[:2]] == [1, later.fix_id]
+        assert log.corrected_by == {1: later.fix_id}
+        assert f"corrected by #{later.fix_id}" in " ".join(str(c) for c in table.get_row_at(0))
+        # Up at the first record stays; Down walks on past the rows held
+        await pilot.press("up")
+        assert table.cursor_row == 0
+        edge = len(log.shown) - 2
+        table.move_cursor(row=edge)
+        await pilot.pause()
+        for _ in range(5):
+            await pilot.press("down")
+        await pilot.pause()
+        assert log.first_place + table.cursor_row == edge + 5
+        assert len(log.shown) <= held
+        # PageDown past the end stops at the latest fix
+        for _ in range(301 // page + 2):
+            await pilot.press("pagedown")
+        await pilot.pause()
+        assert log.shown[table.cursor_row].time_utc == times[-1]
+        assert log.first_place + len(log.shown) == 301
+        # End from the start; then Ctrl+G: go to a time typed in UTC
+        await pilot.press("home")
+        await _settle(pilot, app)
+        await pilot.press("end")
+        await _settle(pilot, app)
+        assert log.shown[table.cursor_row].time_utc == times[-1]
+        from passagelog.tui.goto_dialog import GoToTimeDialog
+
+        await pilot.press("ctrl+g")
+        await pilot.pause()
+        assert isinstance(app.screen, GoToTimeDialog)
+        app.screen.query_one("#goto-time").value = "2026-05-01T12:00:30"  # no zone: UTC
+        await pilot.pause()
+        assert "01 12:00Z" in str(app.screen.query_one("#goto-msg").render())
+        await pilot.press("enter")
+        await _settle(pilot, app)
+        # 12:00:30 falls between the fixes of 12:00 and 12:02
+        assert log.shown[table.cursor_row].time_utc == datetime(2026, 5, 1, 12, 2,
+                                                                tzinfo=timezone.utc)
+        assert log.shown[table.cursor_row - 1].time_utc < datetime(2026, 5, 1, 12, 0, 30,
+                                                                   tzinfo=timezone.utc)
+        # 182 records before it: the fixes of 06:00..12:00 and the correction
+        assert log.first_place + table.cursor_row == 182
+        assert int(table.scroll_y) == table.cursor_row  # at the top of the list
+        assert _head(app).startswith(f"Fixes 183–{182 + page} of 301")
+        # a time of day alone, on the day of the fix under the cursor; a bad one is refused
+        await pilot.press("ctrl+g")
+        await pilot.pause()
+        app.screen.query_one("#goto-time").value = "25:00"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert isinstance(app.screen, GoToTimeDialog)
+        assert app.screen.query_one("#goto-msg").has_class("-bad")
+        app.screen.query_one("#goto-time").value = "07:00"
+        await pilot.press("enter")
+        await _settle(pilot, app)
+        assert log.shown[table.cursor_row].time_utc == datetime(2026, 5, 1, 7, 0,
+                                                                tzinfo=timezone.utc)
+        # after the voyage's last fix: the latest are shown, and the user told so
+        await pilot.press("ctrl+g")
+        await pilot.pause()
+        app.screen.query_one("#goto-time").value = "2026-06-01T00:00Z"
+        await pilot.press("enter")
+        await _settle(pilot, app)
+        assert log.shown[table.cursor_row].time_utc == times[-1]
+
+
+async def test_a_logged_fix_is_shown_where_it_falls_in_time(session, monkeypatch):
+    _many_fixes(session, 300)
+    _no_whole_voyage(monkeypatch, session)
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        log = await _open_log(pilot, app)
+        await _type(pilot, app, "#fix-pos", "49 45.0N 6 30.0W")
+        await _type(pilot, app, "#fix-time", "2026-05-01T08:00:30Z")  # among the early ones
+        await pilot.press("ctrl+s")
+        await _settle(pilot, app)
+        table = app.query_one("#fix-table")
+        assert log.shown[table.cursor_row].fix_id == 301
+        assert log.first_place + table.cursor_row == 121  # after 06:00..08:00
+        # PageUp/PageDown page the list from the form's fields too
+        await _type(pilot, app, "#fix-remarks", "")
+        before = log.first_place + table.cursor_row
+        await pilot.press("pagedown")
+        await pilot.pause()
+        assert log.first_place + table.cursor_row == before + table.page_rows()
 
 
 async def test_a_clock_change_entry_needs_the_new_zone(session):
@@ -86,8 +279,61 @@ async def test_a_clock_change_entry_needs_the_new_zone(session):
         assert "new zone description" in str(app.query_one("#entry-zd-msg").render())
         await _type(pilot, app, "#entry-zd", "+2")
         await _type(pilot, app, "#entry-text", "clocks retarded 1 h")
+        await _type(pilot, app, "#entry-time", "2026-05-01T20:00Z")
         await pilot.press("ctrl+s")
-        await app.workers.wait_for_complete()
-        await pilot.pause()
+        await _settle(pilot, app)
         entries = session.entries()
         assert [(e.kind, e.zd_minutes) for e in entries] == [("clock-change", 120)]
+        # an event says nothing without its text: refused beside the field
+        app.query_one("#entry-kind").value = "event"
+        await _type(pilot, app, "#entry-time", "2026-05-01T21:00Z")
+        await pilot.press("ctrl+s")
+        await _settle(pilot, app)
+        assert app.query_one("#entry-text").has_class("-bad")
+        assert len(session.entries()) == 1
+        await _type(pilot, app, "#entry-text", "sighted the light")
+        await pilot.press("ctrl+s")
+        await _settle(pilot, app)
+        assert len(session.entries()) == 2
+        # in time order, ship's time in the zone in force then: the voyage's ZD +1 before
+        # the change, ZD +2 from it (ZT = UTC - ZD)
+        table = app.query_one("#entry-table")
+        rows = [[str(c) for c in table.get_row_at(i)] for i in range(table.row_count)]
+        assert [r[3] for r in rows] == ["clock-change", "event"]
+        assert rows[1][2] == "01 19:00 (+2)"
+        head = str(app.query_one("#entry-head").render())
+        assert head.startswith("Entries 1–2 of 2, oldest first")
+
+
+def test_zones_of_entries_follow_the_clock_changes():
+    e = [LogEntry(T0, "departure", "", entry_id=1),
+         LogEntry(T0 + timedelta(hours=5), "clock-change", "", zd_minutes=120, entry_id=2),
+         LogEntry(T0 + timedelta(hours=6), "event", "x", entry_id=3),
+         LogEntry(T0 + timedelta(hours=7), "clock-change", "", zd_minutes=180, entry_id=4),
+         LogEntry(T0 + timedelta(hours=7), "clock-change", "", zd_minutes=240, entry_id=5,
+                  supersedes=4, reason="wrong zone")]
+    zones, now = entry_zones(e, 60, T0 + timedelta(days=1))
+    # the corrected clock change (ZD +3) counts no more; its correction (ZD +4) does
+    assert zones == [60, 120, 120, 240, 240] and now == 240
+    assert entry_zones(e, 60, T0 - timedelta(days=1))[1] == 60
+
+
+def test_goto_times_and_the_header():
+    ref = datetime(2026, 5, 2, 17, 45, tzinfo=timezone.utc)
+    assert parse_goto_time("2026-05-01T12:00Z", ref) == datetime(2026, 5, 1, 12, 0,
+                                                                 tzinfo=timezone.utc)
+    # no zone: UTC (the dialog asks for UTC); an offset in the text wins
+    assert parse_goto_time("2026-05-01 12:00", ref).hour == 12
+    assert parse_goto_time("2026-05-01T12:00-03:00", ref).hour == 15
+    assert parse_goto_time("03 06:15Z", ref) == datetime(2026, 5, 3, 6, 15,
+                                                         tzinfo=timezone.utc)
+    assert parse_goto_time("0615", ref) == datetime(2026, 5, 2, 6, 15, tzinfo=timezone.utc)
+    for bad in ("", "24:00", "31 12:00", "noon"):
+        with pytest.raises(InputError):
+            parse_goto_time(bad, datetime(2026, 4, 2, tzinfo=timezone.utc))
+    assert page_head(999_801, 1_000_000, 1_000_000) == (
+        "Fixes 999,801–1,000,000 of 1,000,000, oldest first · PgUp PgDn Home End")
+    span = (datetime(2026, 5, 1, 23, tzinfo=timezone.utc), ref)
+    assert page_head(1, 10, 20, span) == (
+        "Fixes 1–10 of 20, oldest first · 2026-05-01 to 2026-05-02 UTC · PgUp PgDn Home End")
+    assert page_head(1, 10, 20, span, width=40) == "Fixes 1–10 of 20, oldest first"
