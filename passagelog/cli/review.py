@@ -11,7 +11,7 @@ import csv
 import json
 import math
 from datetime import datetime, timezone
-from typing import Any, Iterable
+from typing import Any, Callable, Iterable
 
 import click
 
@@ -362,64 +362,98 @@ def _nm(m: float | None, digits: int = 2) -> str:
     return "-" if m is None else f"{m / NM_M:.{digits}f} NM"
 
 
-def _when(t_s: float | None, zd_minutes: int) -> str:
-    if t_s is None:
-        return "-"
-    from passagelog.nav.zonetime import format_ship_time, format_utc
-
-    dt = datetime.fromtimestamp(t_s, tz=timezone.utc)
-    return f"{format_utc(dt)} ({format_ship_time(dt, zd_minutes)})"
+def _deg(value: float | None) -> str:
+    return "-" if value is None else f"{value:05.1f}°T"
 
 
 def _span(seconds: float) -> str:
+    """A length of time as people say it: ``45 min``, ``7 h 30 min``, ``3 d 04 h``."""
     s = int(round(abs(seconds)))
-    h, rem = divmod(s, 3600)
-    return f"{h} h {rem // 60:02d} min"
+    days, rem = divmod(s, 86400)
+    h, rem = divmod(rem, 3600)
+    if days >= 2:
+        return f"{days} d {h:02d} h"
+    h += 24 * days
+    return f"{h} h {rem // 60:02d} min" if h else f"{rem // 60} min"
 
 
-def status_lines(st, *, zd_minutes: int, now_s: float | None, name: str) -> list[str]:
-    """The watch summary as lines of text."""
+def _when(t_s: float | None, zd_minutes: int, *, seconds: bool = False) -> str:
+    """A time in UTC and in ship's time with its zone: ``2026-03-01 10:40Z  ship
+    2026-03-01 07:40 ZD+3`` (to the minute unless ``seconds``); ``-`` when unknown."""
+    if t_s is None or not math.isfinite(t_s):
+        return "-"
+    from passagelog.nav.zonetime import format_zd, ship_time
+
+    step = 1.0 if seconds else 60.0
+    dt = datetime.fromtimestamp(round(t_s / step) * step, tz=timezone.utc)
+    fmt = "%Y-%m-%d %H:%M:%S" if seconds else "%Y-%m-%d %H:%M"
+    return (f"{dt:{fmt}}Z  ship {ship_time(dt, zd_minutes):{fmt}} "
+            f"ZD{format_zd(zd_minutes)}")
+
+
+#: Width of the label column of the watch summary.
+LABEL = 13
+
+
+def _line(label: str, text: str) -> str:
+    return f"{label:<{LABEL}}{text}".rstrip()
+
+
+def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voyage: str,
+                 plan: str) -> list[str]:
+    """The watch summary as lines of text: a label column, then the value with its unit;
+    times in UTC and in ship's time with the zone in force; ``-`` for what is not known."""
     from passagelog.nav.position import format_position
 
-    lines = [f"Voyage    {name}"]
-    fix = f"Fix       {_when(st.time_s, zd_minutes)}  {format_position(st.lat, st.lon)}"
+    lines = [_line("Voyage", voyage)] if voyage else []
+    lines.append(_line("Plan", plan))
+    age = ""
     if now_s is not None:
-        fix += f", {_span(now_s - st.time_s)} ago" if now_s >= st.time_s else ""
-    if st.suspect:
-        fix += "  SUSPECT"
-    lines.append(fix)
+        age = (f"  ({_span(now_s - st.time_s)} ago)" if now_s >= st.time_s
+               else f"  ({_span(st.time_s - now_s)} later than this computer's clock)")
+    lines.append(_line("Fix", _when(st.time_s, zd_at(st.time_s), seconds=True) + age))
+    lines.append(_line("Position", format_position(st.lat, st.lon)
+                       + ("  SUSPECT fix" if st.suspect else "")))
     if st.phase != "under-way":
-        lines.append(f"Phase     {st.phase}")
-    lines.append(f"Leg       {st.leg} of {st.legs}: {st.from_wp} -> {st.to_wp}")
+        lines.append(_line("Phase", st.phase))
+    lines.append(_line("Leg", f"{st.leg} of {st.legs}: {st.from_wp} -> {st.to_wp}"))
     side = st.side or "on track"
     limit = "no limit set" if st.xtl_m is None else (
         f"limit {_nm(st.xtl_m)} {st.side or ''}".rstrip()
         + (": inside" if st.inside_xtl else ": OUTSIDE"))
-    lines.append(f"XTE       {_nm(abs(st.xte_m))} {side} ({st.xte_m:+.1f} m), {limit}")
-    lines.append(f"Along     {_nm(st.along_m)}, leg to go {_nm(st.leg_to_go_m)}")
-    btw = "-" if st.btw is None else f"{st.btw:05.1f}°T"
-    lines.append(f"Next WP   {st.to_wp}: DTW {_nm(st.dtw_m)}, BTW {btw}")
-    lines.append(f"DTG       {_nm(st.route_to_go_m)} to {st.destination} along the plan")
-    hours = st.window_s / 3600.0
+    lines.append(_line("XTE", f"{_nm(abs(st.xte_m))} {side} ({st.xte_m:+.1f} m), {limit}"))
+    lines.append(_line("Along track", f"{_nm(st.along_m)} from {st.from_wp}, "
+                                      f"leg to go {_nm(st.leg_to_go_m)}"))
+    lines.append(_line("Next WP", f"{st.to_wp}: DTW {_nm(st.dtw_m)}, BTW {_deg(st.btw)}"))
+    lines.append(_line("DTG", f"{_nm(st.route_to_go_m)} to {st.destination} along the plan"))
+    window = _span(st.window_s)
     if st.smg_window_kn is None:
-        lines.append(f"Made good -  (no progress measured over the last {hours:g} h)")
+        lines.append(_line("Made good", f"-  (no progress measured over the last {window})"))
     else:
-        cmg = "-" if st.cmg_window is None else f"{st.cmg_window:05.1f}°T"
-        span = hours if st.window_used_s is None else st.window_used_s / 3600.0
-        lines.append(f"Made good {cmg} at {st.smg_window_kn:.1f} kn over the last {span:.3g} h")
-    lines.append(f"ETA {st.to_wp:<6}{_when(st.eta_wp_plan_s, zd_minutes)} by plan, "
-                 f"{_when(st.eta_wp_smg_s, zd_minutes)} by SMG")
+        used = window if st.window_used_s is None else _span(st.window_used_s)
+        lines.append(_line("Made good", f"CMG {_deg(st.cmg_window)}, SMG "
+                                        f"{st.smg_window_kn:.1f} kn over the last {used}"))
+    etas = [("ETA next WP", st.to_wp, st.eta_wp_plan_s, st.eta_wp_smg_s)]
     if st.to_wp != st.destination or st.leg != st.legs:
-        lines.append(f"ETA {st.destination:<6}{_when(st.eta_dest_plan_s, zd_minutes)} by plan, "
-                     f"{_when(st.eta_dest_smg_s, zd_minutes)} by SMG")
-    if st.delay_s is not None:
-        word = "behind" if st.delay_s > 0 else "ahead of"
-        lines.append(f"Schedule  {_span(st.delay_s)} {word} the plan")
-    if st.drift_kn is None:
-        lines.append("Set/drift -  (heading and speed through the water not logged)")
+        etas.append(("ETA dest", st.destination, st.eta_dest_plan_s, st.eta_dest_smg_s))
     else:
-        sd = "-" if st.set is None else f"{st.set:05.1f}°T"
-        lines.append(f"Set/drift {sd} {st.drift_kn:.1f} kn over the last {hours:g} h")
+        etas[0] = ("ETA dest", st.destination, st.eta_dest_plan_s, st.eta_dest_smg_s)
+    for label, wp, by_plan, by_smg in etas:
+        lines.append(_line(label, wp))
+        for how, t_s in (("by plan", by_plan), ("by SMG", by_smg)):
+            lines.append(_line(f"  {how}", _when(t_s, zd_at(t_s) if t_s is not None else 0)))
+    if st.delay_s is None:
+        lines.append(_line("Schedule", "-"))
+    elif abs(st.delay_s) < 30.0:
+        lines.append(_line("Schedule", "on the plan's time"))
+    else:
+        word = "behind" if st.delay_s > 0 else "ahead of"
+        lines.append(_line("Schedule", f"{_span(st.delay_s)} {word} the plan"))
+    if st.drift_kn is None:
+        lines.append(_line("Set/drift", "-  (heading and speed through the water not logged)"))
+    else:
+        lines.append(_line("Set/drift", f"set {_deg(st.set)}, drift {st.drift_kn:.1f} kn "
+                                        f"over the last {window}"))
     return lines
 
 
@@ -443,9 +477,9 @@ def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
     if as_json:
         click.echo(json.dumps(st.row(), ensure_ascii=False, allow_nan=False))
         return
-    zd_now = clocks_from(inputs["zd_minutes"], inputs["entries"]).zd_at(st.time_s)
+    clocks = clocks_from(inputs["zd_minutes"], inputs["entries"])
     now_dt = _time(now, "--now") if now else datetime.now(timezone.utc)
-    name = inputs["voyage"] or inputs["plan_name"]
-    for line in status_lines(st, zd_minutes=zd_now, now_s=now_dt.timestamp(), name=name):
+    for line in status_lines(st, zd_at=clocks.zd_at, now_s=now_dt.timestamp(),
+                             voyage=inputs["voyage"], plan=inputs["plan_name"]):
         click.echo(line)
     click.echo(f"Caution: {CAUTION}", err=True)

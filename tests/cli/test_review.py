@@ -135,10 +135,44 @@ def test_status_from_files(files):
              "--now", "2026-03-01T12:00:00Z"])
     assert r.exit_code == 0, r.output
     lines = r.stdout.splitlines()
-    assert lines[2] == "Leg       2 of 2: MID -> END"
-    assert lines[3] == "XTE       0.06 NM L (-120.0 m), limit 0.50 NM L: inside"
-    assert lines[5].startswith("Next WP   END: DTW 1.62 NM, BTW 18")
+    assert lines[0] == "Plan         route"  # no voyage line from files
+    assert lines[1].startswith("Fix          2026-03-01 10:30:00Z  ship 2026-03-01 10:30:00 ZD0")
+    assert lines[1].endswith("(1 h 30 min ago)")
+    assert lines[3] == "Leg          2 of 2: MID -> END"
+    assert lines[4] == "XTE          0.06 NM L (-120.0 m), limit 0.50 NM L: inside"
+    assert lines[6].startswith("Next WP      END: DTW 1.62 NM, BTW 18")
     assert r.stderr.strip() == f"Caution: {CAUTION}"
+
+
+def test_status_shows_labels_units_and_dashes(files):
+    """The watch summary: one label column, every ETA in UTC and ship's time, ``-`` where a
+    figure is not known (an ETA after arrival), and a fix dated after the clock said so."""
+    from passagelog.cli.review import LABEL
+
+    d = files[0]
+    r = run(["status", "--plan", str(d / "route.csv"), "--fixes", str(d / "fixes.csv"),
+             "--zd", "+3", "--now", "2026-03-01T10:00:00Z"])
+    assert r.exit_code == 0, r.output
+    lines = r.stdout.splitlines()
+    for line in lines:
+        label, value = line[:LABEL], line[LABEL:]
+        assert label.strip() and value and not value.startswith(" "), line
+    by = {line[:LABEL].strip(): line[LABEL:] for line in lines}
+    # ZT = UTC - ZD: 10:30Z is 07:30 in zone +3
+    assert by["Fix"] == ("2026-03-01 10:30:00Z  ship 2026-03-01 07:30:00 ZD+3  "
+                         "(30 min later than this computer's clock)")
+    assert by["ETA dest"] == "END"
+    assert by["by plan"] == "2026-03-01 10:40Z  ship 2026-03-01 07:40 ZD+3"
+    assert by["Made good"] == "CMG 180.0°T, SMG 26.3 kn over the last 3 h 00 min"
+    assert by["Set/drift"].startswith("-  (")
+    assert "ETA next WP" not in by  # the next waypoint is the destination
+
+
+def test_status_span_wording():
+    from passagelog.cli.review import _span
+
+    assert [_span(s) for s in (0, 59 * 60, 3600, 7.5 * 3600, 47 * 3600, 50 * 3600)] == [
+        "0 min", "59 min", "1 h 00 min", "7 h 30 min", "47 h 00 min", "2 d 02 h"]
 
 
 def test_usage_and_input_errors_exit_2_and_1(files, tmp_path):
@@ -182,7 +216,8 @@ def test_review_and_status_of_a_logbook_voyage(tmp_path):
     assert r.exit_code == 0, r.output
     assert json.loads(r.stdout)["leg"] == 2
     r = run(["--db", str(db), "status", "--now", "2026-03-01T12:00:00Z"])
-    assert r.stdout.splitlines()[0] == "Voyage    Kestrel 1"
+    assert r.stdout.splitlines()[:2] == ["Voyage       Kestrel 1",
+                                          "Plan         Channel, revision 1"]
     # ship's time after the clock change is ZD+1
     assert "ZD+1" in r.stdout
 
