@@ -248,53 +248,6 @@ def write_json(rows: Iterable[dict], out) -> None:
     out.write("\n]\n" if not first else "]\n")
 
 
-def _people(row: dict) -> dict:
-    """A row rounded for people: distances in NM, positions in degrees and minutes."""
-    from passagelog.nav.position import format_lat, format_lon
-
-    out = {}
-    for key, value in row.items():
-        if value is None:
-            out[key] = ""
-        elif isinstance(value, bool):
-            out[key] = "yes" if value else "no"
-        elif key.endswith("_utc") and isinstance(value, str):
-            out[key] = value[:19] + "Z" if len(value) > 20 else value
-        elif key in ("lat", "from_lat", "to_lat"):
-            out[key] = format_lat(value)
-        elif key in ("lon", "from_lon", "to_lon"):
-            out[key] = format_lon(value)
-        elif key.endswith("_m") and isinstance(value, (int, float)):
-            out[key[:-2] + "_nm"] = f"{value / NM_M:.2f}"
-            continue
-        elif key.endswith("_s") and isinstance(value, (int, float)):
-            out[key[:-2] + "_h"] = f"{value / 3600.0:.2f}"
-            continue
-        elif key.endswith("_kn") or key.endswith("_hours"):
-            out[key] = f"{value:.1f}"
-        elif key in ("btw", "cmg", "cmg_prev", "cmg_dep", "set"):
-            out[key] = f"{value:05.1f}"
-        elif key == "share_outside":
-            out[key] = f"{100 * value:.1f}%"
-        elif isinstance(value, float):
-            out[key] = f"{value:.6g}"
-        else:
-            out[key] = value
-    return out
-
-
-def _people_columns(columns: Iterable[str]) -> list[str]:
-    out = []
-    for c in columns:
-        if c.endswith("_m"):
-            out.append(c[:-2] + "_nm")
-        elif c.endswith("_s"):
-            out.append(c[:-2] + "_h")
-        else:
-            out.append(c)
-    return out
-
-
 def emit_table(review, table: str, fmt: str, *, title: str, provenance) -> None:
     from passagelog.review import TABLE_COLUMNS
 
@@ -311,10 +264,10 @@ def emit_table(review, table: str, fmt: str, *, title: str, provenance) -> None:
         write_json(rows, out)
         return
     from passagelog.cli.common import emit_records
+    from passagelog.report.display import display_records
 
-    shown = PEOPLE_COLUMNS.get(table, columns)
-    records = [_people({c: r.get(c) for c in shown}) for r in rows]
-    emit_records(records, _people_columns(shown), fmt, title=title, provenance=provenance)
+    records, shown = display_records(rows, PEOPLE_COLUMNS.get(table, columns))
+    emit_records(records, shown, fmt, title=title, provenance=provenance)
 
 
 def _provenance(inputs: dict):

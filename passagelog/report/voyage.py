@@ -13,11 +13,11 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from datetime import datetime, timezone
-from typing import Iterable, Sequence
+from typing import Sequence
 
 from passagelog.nav.position import format_position
-from passagelog.nav.units import NM_M
 from passagelog.report import plots
+from passagelog.report.display import display_key, display_records, display_value  # noqa: F401
 from passagelog.report.legtable import LEG_TABLE_COLUMNS, leg_table_records, plan_leg_table
 from passagelog.report.render import Provenance, esc, html_document, html_table
 from passagelog.review import Review
@@ -32,40 +32,6 @@ class VoyageHeader:
     from_place: str = ""
     to_place: str = ""
     departure_utc: datetime | None = None
-
-
-def display_value(key: str, value):
-    """A row value in the trade's units: ``*_m`` -> NM, ``*_s`` -> h:mm, shares -> %."""
-    if value is None:
-        return None
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if key.endswith("_m") and isinstance(value, (int, float)):
-        return round(value / NM_M, 2)
-    if key.endswith("_s") and isinstance(value, (int, float)):
-        minutes = round(abs(value) / 60.0)
-        return f"{'-' if value < 0 else ''}{minutes // 60}:{minutes % 60:02d}"
-    if key.startswith("share") and isinstance(value, (int, float)):
-        return f"{100.0 * value:.1f}%"
-    if isinstance(value, float):
-        return round(value, 2)
-    return value
-
-
-def display_key(key: str) -> str:
-    """The column heading for ``key`` in the trade's units."""
-    if key.endswith("_m"):
-        return key[:-2] + "_nm"
-    if key.endswith("_s"):
-        return key[:-2] + "_h:mm"
-    return key
-
-
-def display_records(rows: Iterable[dict], columns: Sequence[str]) -> tuple[list[dict], list[str]]:
-    out = []
-    for row in rows:
-        out.append({display_key(c): display_value(c, row.get(c)) for c in columns})
-    return out, [display_key(c) for c in columns]
 
 
 def _position_rows(rows: list[dict]) -> list[dict]:

@@ -93,7 +93,8 @@ def test_report_tables_hold_the_engines_figures(report):
     section = html.split("Deviation episodes", 1)[1].split("<h2>", 1)[0]
     assert f">{display_value('max_abs_xte_m', ep['max_abs_xte_m'])}<" in section
     assert ">starboard<" in section
-    assert display_value("max_abs_xte_m", ep["max_abs_xte_m"]) == pytest.approx(0.8, abs=0.01)
+    assert float(display_value("max_abs_xte_m", ep["max_abs_xte_m"])) == pytest.approx(
+        0.8, abs=0.01)
     passages = html.split("Waypoint passages", 1)[1].split("<h2>", 1)[0]
     assert passages.count("<tr>") == 1 + len(rv.passages)
 
@@ -112,7 +113,15 @@ def test_report_figures_are_svg_with_their_parts(report):
 
 
 def test_display_units():
-    assert display_value("dmg_m", 1852.0) == 1.0
+    assert display_value("dmg_m", 1852.0) == "1.00"
     assert display_value("duration_s", 5400.0) == "1:30"
+    assert display_value("delay_s", -300.0) == "-0:05"
+    assert display_value("delay_s", -20.0) == "0:00"  # no minus on a zero
+    assert display_value("btw", 5.25) == "005.2"
+    assert display_value("lat", -33.5) == "33°30.000'S"
+    assert display_value("from_lon", 18.25) == "018°15.000'E"
+    assert display_value("time_utc", "2026-03-01T10:00:00.250000Z") == "2026-03-01T10:00:00Z"
+    assert display_value("smg_kn", 12.345) == "12.3"
+    assert display_value("eta_utc", None) is None
     assert display_value("share_outside", 0.25) == "25.0%"
     assert display_value("skipped", False) == "no"
