@@ -2,8 +2,13 @@
 
 from __future__ import annotations
 
+import csv
+import functools
+import io
 import json
+import math
 import os
+from datetime import datetime, timezone
 from pathlib import Path
 from typing import Any, Callable
 
@@ -61,6 +66,128 @@ def emit_json(obj: Any) -> None:
 
 def json_option(func: Callable) -> Callable:
     return click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")(func)
+
+
+def options(*decorators: Callable) -> Callable:
+    """Several click options as one decorator, in the order given (as --help lists them)."""
+    def apply(func: Callable) -> Callable:
+        for opt in reversed(decorators):
+            func = opt(func)
+        return func
+    return apply
+
+
+def output_options(func: Callable) -> Callable:
+    """``--csv`` and ``--json`` (exclusive: both is a usage error before the command runs,
+    so nothing is written first)."""
+    @functools.wraps(func)
+    def checked(*args, **kwargs):
+        one_form(kwargs.get("as_json", False), kwargs.get("as_csv", False))
+        return func(*args, **kwargs)
+
+    checked = click.option("--csv", "as_csv", is_flag=True,
+                           help="Print CSV (header row).")(checked)
+    return json_option(checked)
+
+
+def one_form(as_json: bool, as_csv: bool) -> None:
+    if as_json and as_csv:
+        raise click.UsageError("choose one of --json and --csv")
+
+
+# ---------------------------------------------------------------------------------------------
+# records of the logbook: JSON arrays/objects, CSV, and plain aligned text for people
+
+NM_M = 1852.0
+
+
+def nm(metres: float | None) -> float | None:
+    """Metres as nautical miles (``None`` stays ``None``)."""
+    return None if metres is None else metres / NM_M
+
+
+def iso(dt: datetime | None) -> str | None:
+    """ISO 8601 UTC with Z, as stored (fractions of a second only when there are any)."""
+    if dt is None:
+        return None
+    return dt.astimezone(timezone.utc).isoformat()[:-6] + "Z"
+
+
+def csv_cell(value: Any) -> str:
+    """A CSV cell of the scripting contract: empty for missing (or a non-finite number),
+    ``true``/``false``, reals at full precision."""
+    if value is None:
+        return ""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, float):
+        return repr(value) if math.isfinite(value) else ""
+    return str(value)
+
+
+def write_csv(rows, columns, out) -> None:
+    """CSV with a header row of ``columns`` to the text stream ``out``."""
+    writer = csv.writer(out, lineterminator="\n")
+    writer.writerow(columns)
+    for row in rows:
+        writer.writerow([csv_cell(row.get(c)) for c in columns])
+
+
+def human_cell(value: Any) -> str:
+    if value is None:
+        return "-"
+    if isinstance(value, bool):
+        return "yes" if value else "no"
+    if isinstance(value, float):
+        return f"{value:.1f}"
+    return str(value)
+
+
+def emit(records: list[dict], columns: list[str], as_json: bool, as_csv: bool,
+         human: list[tuple[str, Callable[[dict], Any]]] | None = None, *,
+         one: bool = False) -> None:
+    """Print records: JSON array (with ``one``, the one record's object), CSV with
+    ``columns``, or a plain aligned table whose columns are ``human`` (heading, value of a
+    record) or else ``columns``."""
+    one_form(as_json, as_csv)
+    if as_json and one:
+        emit_one(records[0], True)
+        return
+    if as_json:
+        click.echo(json.dumps(records, ensure_ascii=False, allow_nan=False, indent=1))
+        return
+    if as_csv:
+        buf = io.StringIO()
+        write_csv(records, columns, buf)
+        click.echo(buf.getvalue(), nl=False)
+        return
+    human = human or [(c, (lambda r, c=c: r.get(c))) for c in columns]
+    rows = [[h for h, _ in human]] + [[human_cell(get(r)) for _, get in human]
+                                      for r in records]
+    widths = [max(len(row[i]) for row in rows) for i in range(len(human))]
+    for row in rows:
+        click.echo("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
+
+
+def emit_one(record: dict, as_json: bool, lines: list[tuple[str, Any]] = ()) -> None:
+    """Print one record: JSON object, or ``label  value`` lines."""
+    if as_json:
+        click.echo(json.dumps(record, ensure_ascii=False, allow_nan=False, indent=1))
+        return
+    width = max(len(label) for label, _ in lines)
+    for label, value in lines:
+        click.echo(f"{label.ljust(width)}  {human_cell(value)}".rstrip())
+
+
+def show_record(rec: dict, columns: list[str], as_json: bool, as_csv: bool,
+                lines: list[tuple[str, Any]] | None = None) -> None:
+    """One record of a ``show`` command: JSON object, one-row CSV of ``columns``, or label
+    lines (default: every key of ``rec``)."""
+    one_form(as_json, as_csv)
+    if as_csv:
+        emit([rec], columns, False, True)
+    else:
+        emit_one(rec, as_json, list(rec.items()) if lines is None else lines)
 
 
 def open_tui(ctx: click.Context) -> None:

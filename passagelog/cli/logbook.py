@@ -8,19 +8,18 @@ Distances at this edge are NM, speeds knots.
 
 from __future__ import annotations
 
-import csv
-import io
 import json
 import math
 from datetime import datetime, timezone
-from typing import Any, Callable, Iterable
+from typing import Callable
 
 import click
 
-from passagelog.cli.common import db_path_from
+from passagelog.cli.common import (  # noqa: F401  (NM_M, emit, iso, nm: for cli.plan)
+    NM_M, db_path_from, emit, emit_one, iso, nm, one_form, options, output_options,
+    show_record,
+)
 from passagelog.errors import InputError, IntegrityError
-
-NM_M = 1852.0
 
 
 # ---------------------------------------------------------------------------------------------
@@ -32,72 +31,6 @@ def open_book(ctx: click.Context, *, create: bool = True):
     from passagelog.store import Logbook
 
     return Logbook.open(db_path_from(ctx), create=create)
-
-
-def output_options(func: Callable) -> Callable:
-    func = click.option("--csv", "as_csv", is_flag=True, help="Print CSV (header row).")(func)
-    return click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")(func)
-
-
-def iso(dt: datetime | None) -> str | None:
-    """ISO 8601 UTC with Z, as stored (fractions of a second only when there are any)."""
-    if dt is None:
-        return None
-    return dt.astimezone(timezone.utc).isoformat()[:-6] + "Z"
-
-
-def _csv_cell(value: Any) -> str:
-    if value is None:
-        return ""
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return repr(value)
-    return str(value)
-
-
-def _human_cell(value: Any) -> str:
-    if value is None:
-        return "-"
-    if isinstance(value, bool):
-        return "yes" if value else "no"
-    if isinstance(value, float):
-        return f"{value:.1f}"
-    return str(value)
-
-
-def emit(records: list[dict], columns: list[str], as_json: bool, as_csv: bool,
-         human: list[tuple[str, Callable[[dict], Any]]] | None = None) -> None:
-    """Print records: JSON array, CSV with ``columns``, or a plain aligned table."""
-    if as_json and as_csv:
-        raise click.UsageError("choose one of --json and --csv")
-    if as_json:
-        click.echo(json.dumps(records, ensure_ascii=False, allow_nan=False, indent=1))
-        return
-    if as_csv:
-        buf = io.StringIO()
-        writer = csv.writer(buf, lineterminator="\n")
-        writer.writerow(columns)
-        for rec in records:
-            writer.writerow([_csv_cell(rec.get(c)) for c in columns])
-        click.echo(buf.getvalue(), nl=False)
-        return
-    human = human or [(c, (lambda r, c=c: r.get(c))) for c in columns]
-    rows = [[h for h, _ in human]] + [[_human_cell(get(r)) for _, get in human]
-                                      for r in records]
-    widths = [max(len(row[i]) for row in rows) for i in range(len(human))]
-    for row in rows:
-        click.echo("  ".join(cell.ljust(w) for cell, w in zip(row, widths)).rstrip())
-
-
-def emit_one(record: dict, as_json: bool, lines: list[tuple[str, Any]]) -> None:
-    """Print one record: JSON object, or ``label  value`` lines."""
-    if as_json:
-        click.echo(json.dumps(record, ensure_ascii=False, allow_nan=False, indent=1))
-        return
-    width = max(len(label) for label, _ in lines)
-    for label, value in lines:
-        click.echo(f"{label.ljust(width)}  {_human_cell(value)}".rstrip())
 
 
 def number(thing: str, field: str, text: str | None, *, scale: float = 1.0) -> float | None:
@@ -165,12 +98,11 @@ def pos_text(lat: float | None, lon: float | None) -> str | None:
     return None if lat is None else format_position(lat, lon)
 
 
-def _nm(metres: float | None) -> float | None:
-    return None if metres is None else metres / NM_M
-
-
 # ---------------------------------------------------------------------------------------------
 # records as JSON objects (the stable forms of docs/cli.md)
+
+
+CRAFT_COLUMNS = ["craft_id", "name", "kind", "usual_speed_kn", "max_speed_kn"]
 
 
 def craft_record(c) -> dict:
@@ -243,13 +175,10 @@ def craft_add(ctx, name, kind, usual_speed, max_speed, as_json, as_csv) -> None:
 
 
 def _emit_crafts(items, as_json, as_csv, one=False) -> None:
-    records = [craft_record(c) for c in items]
-    if one and as_json:
-        return emit_one(records[0], True, [])
-    emit(records, ["craft_id", "name", "kind", "usual_speed_kn", "max_speed_kn"], as_json,
-         as_csv, [("ID", lambda r: r["craft_id"]), ("NAME", lambda r: r["name"]),
-                  ("KIND", lambda r: r["kind"]), ("USUAL KN", lambda r: r["usual_speed_kn"]),
-                  ("MAX KN", lambda r: r["max_speed_kn"])])
+    emit([craft_record(c) for c in items], CRAFT_COLUMNS, as_json, as_csv, one=one, human=[
+        ("ID", lambda r: r["craft_id"]), ("NAME", lambda r: r["name"]),
+        ("KIND", lambda r: r["kind"]), ("USUAL KN", lambda r: r["usual_speed_kn"]),
+        ("MAX KN", lambda r: r["max_speed_kn"])])
 
 
 @craft.command("show")
@@ -260,18 +189,7 @@ def craft_show(ctx, name, as_json, as_csv) -> None:
     """Show one craft (by name or id)."""
     with open_book(ctx, create=False) as book:
         rec = craft_record(book.craft(name))
-    _show(rec, ["craft_id", "name", "kind", "usual_speed_kn", "max_speed_kn"], as_json, as_csv,
-          [(k, rec[k]) for k in rec])
-
-
-def _show(rec: dict, columns: list[str], as_json: bool, as_csv: bool, lines) -> None:
-    """One record: JSON object, one-row CSV of ``columns``, or label lines."""
-    if as_json and as_csv:
-        raise click.UsageError("choose one of --json and --csv")
-    if as_csv:
-        emit([rec], columns, False, True)
-    else:
-        emit_one(rec, as_json, lines)
+    show_record(rec, CRAFT_COLUMNS, as_json, as_csv)
 
 
 @craft.command("list")
@@ -327,10 +245,8 @@ VOYAGE_COLUMNS = ["voyage_id", "name", "craft_id", "craft", "from_place", "to_pl
 def _emit_voyages(book, items, as_json, as_csv, one=False) -> None:
     from passagelog.nav.zonetime import format_zd
 
-    records = [voyage_record(book, v) for v in items]
-    if one and as_json:
-        return emit_one(records[0], True, [])
-    emit(records, VOYAGE_COLUMNS, as_json, as_csv, [
+    emit([voyage_record(book, v) for v in items], VOYAGE_COLUMNS, as_json, as_csv, one=one,
+         human=[
         ("ID", lambda r: r["voyage_id"]), ("NAME", lambda r: r["name"]),
         ("CRAFT", lambda r: r["craft"]), ("FROM", lambda r: r["from_place"] or None),
         ("TO", lambda r: r["to_place"] or None), ("DEPARTURE", lambda r: r["departure_utc"]),
@@ -376,7 +292,7 @@ def voyage_show(ctx, name, as_json, as_csv) -> None:
     if last:
         lines.append(("latest fix", f"{rec['latest_fix']['time_utc']} "
                                     f"{pos_text(last.lat, last.lon)}"))
-    _show(rec, VOYAGE_COLUMNS, as_json, as_csv, lines)
+    show_record(rec, VOYAGE_COLUMNS, as_json, as_csv, lines)
 
 
 @voyage.command("assign-plan")
@@ -406,25 +322,25 @@ def fix() -> None:
     """Fixes: positions at times, append-only; a correction supersedes a fix."""
 
 
-def _fix_options(func: Callable) -> Callable:
-    for opt in reversed([
-        click.option("--time", "time_text", metavar="TIME",
-                     help="UTC (2026-03-01T12:00Z) or ship's time with its zone "
-                          "(2026-03-01T13:00 ZD-1, or an offset)."),
-        click.option("--zone", "zone_text", metavar="ZD",
-                     help="Zone description of a --time written without one."),
-        click.option("--method", metavar="|".join(("gnss", "radar", "visual", "celestial",
-                                                   "dr", "ep", "other"))),
-        click.option("--sog", metavar="KN", help="Speed over ground, knots."),
-        click.option("--cog", metavar="DEG", help="Course over ground, degrees true."),
-        click.option("--heading", metavar="DEG", help="Heading, degrees true."),
-        click.option("--stw", metavar="KN", help="Speed through the water, knots."),
-        click.option("--hdop", metavar="N", help="Horizontal dilution of precision."),
-        click.option("--satellites", metavar="N", help="Satellites used."),
-        click.option("--remarks", help="Free text."),
-    ]):
-        func = opt(func)
-    return func
+#: ``--zone`` of the commands that take a ``--time``.
+ZONE_OPTION = click.option("--zone", "zone_text", metavar="ZD",
+                           help="Zone description of a --time written without one.")
+
+_fix_options = options(
+    click.option("--time", "time_text", metavar="TIME",
+                 help="UTC (2026-03-01T12:00Z) or ship's time with its zone "
+                      "(2026-03-01T13:00 ZD-1, or an offset)."),
+    ZONE_OPTION,
+    click.option("--method", metavar="|".join(("gnss", "radar", "visual", "celestial",
+                                               "dr", "ep", "other"))),
+    click.option("--sog", metavar="KN", help="Speed over ground, knots."),
+    click.option("--cog", metavar="DEG", help="Course over ground, degrees true."),
+    click.option("--heading", metavar="DEG", help="Heading, degrees true."),
+    click.option("--stw", metavar="KN", help="Speed through the water, knots."),
+    click.option("--hdop", metavar="N", help="Horizontal dilution of precision."),
+    click.option("--satellites", metavar="N", help="Satellites used."),
+    click.option("--remarks", help="Free text."),
+)
 
 
 def _build_fix(base, pos_text_, time_text, zone_text, method, sog, cog, heading, stw, hdop,
@@ -467,11 +383,16 @@ def _say_fix(book, voyage_name, f, as_json) -> None:
                  else "a jump at the same time")
         click.echo(f"passagelog: warning: fix {f.fix_id} is suspect: implied speed {speed} "
                    f"from the previous fix exceeds the craft's maximum {top:g} kn", err=True)
+    _say_new(rec, as_json, f"fix {f.fix_id}  {rec['time_utc']}  {pos_text(f.lat, f.lon)}"
+             + (f"  supersedes fix {f.supersedes}" if f.supersedes else ""))
+
+
+def _say_new(rec: dict, as_json: bool, line: str) -> None:
+    """A record just written: its JSON object, or one line for people."""
     if as_json:
-        emit_one(rec, True, [])
+        emit_one(rec, True)
     else:
-        click.echo(f"fix {f.fix_id}  {rec['time_utc']}  {pos_text(f.lat, f.lon)}"
-                   + (f"  supersedes fix {f.supersedes}" if f.supersedes else ""))
+        click.echo(line)
 
 
 @fix.command("add")
@@ -548,7 +469,7 @@ def fix_show(ctx, fix_id, as_json, as_csv) -> None:
     fid = whole("fix", "id", fix_id)
     with open_book(ctx, create=False) as book:
         rec = fix_record(book, book.fix(fid))
-    _show(rec, FIX_COLUMNS, as_json, as_csv,
+    show_record(rec, FIX_COLUMNS, as_json, as_csv,
           [(k, rec[k]) for k in ["fix_id", "time_utc"]]
           + [("position", pos_text(rec["lat"], rec["lon"]))]
           + [(k, rec[k]) for k in FIX_COLUMNS if k not in ("fix_id", "time_utc", "lat", "lon")])
@@ -563,18 +484,14 @@ def entry() -> None:
     """Log entries: departure, arrival, clock change, course alteration, event, remark."""
 
 
-def _entry_options(func: Callable) -> Callable:
-    for opt in reversed([
-        click.option("--time", "time_text", metavar="TIME",
-                     help="UTC or ship's time with its zone (default: now, UTC)."),
-        click.option("--zone", "zone_text", metavar="ZD",
-                     help="Zone description of a --time written without one."),
-        click.option("--new-zd", "new_zd", metavar="ZD",
-                     help="For a clock change: the new zone description."),
-        click.option("--position", "pos", metavar="POSITION", help="Where (optional)."),
-    ]):
-        func = opt(func)
-    return func
+_entry_options = options(
+    click.option("--time", "time_text", metavar="TIME",
+                 help="UTC or ship's time with its zone (default: now, UTC)."),
+    ZONE_OPTION,
+    click.option("--new-zd", "new_zd", metavar="ZD",
+                 help="For a clock change: the new zone description."),
+    click.option("--position", "pos", metavar="POSITION", help="Where (optional)."),
+)
 
 
 def _build_entry(base, kind, text, time_text, zone_text, new_zd, pos):
@@ -592,11 +509,8 @@ def _build_entry(base, kind, text, time_text, zone_text, new_zd, pos):
 
 def _say_entry(book, e, as_json) -> None:
     rec = entry_record(book, e)
-    if as_json:
-        emit_one(rec, True, [])
-    else:
-        click.echo(f"entry {e.entry_id}  {rec['time_utc']}  {e.kind}"
-                   + (f"  supersedes entry {e.supersedes}" if e.supersedes else ""))
+    _say_new(rec, as_json, f"entry {e.entry_id}  {rec['time_utc']}  {e.kind}"
+             + (f"  supersedes entry {e.supersedes}" if e.supersedes else ""))
 
 
 @entry.command("add")
@@ -671,7 +585,7 @@ def entry_show(ctx, entry_id, as_json, as_csv) -> None:
         rec = entry_record(book, book.entry(eid))
     lines = [(k, rec[k]) for k in ENTRY_COLUMNS if k not in ("lat", "lon")]
     lines.insert(5, ("position", pos_text(rec["lat"], rec["lon"])))
-    _show(rec, ENTRY_COLUMNS, as_json, as_csv, lines)
+    show_record(rec, ENTRY_COLUMNS, as_json, as_csv, lines)
 
 
 # ---------------------------------------------------------------------------------------------

@@ -11,14 +11,11 @@ from typing import Callable
 
 import click
 
-from passagelog.cli.logbook import (
-    NM_M, emit, emit_one, iso, number, open_book, output_options, pos_text, position, whole,
+from passagelog.cli.common import (
+    NM_M, emit, emit_one, iso, nm, one_form, options, output_options,
 )
+from passagelog.cli.logbook import number, open_book, pos_text, position, whole
 from passagelog.errors import InputError
-
-
-def _nm(metres):
-    return None if metres is None else metres / NM_M
 
 
 def route_record(plan_info, route) -> dict:
@@ -27,7 +24,7 @@ def route_record(plan_info, route) -> dict:
     from passagelog.nav.rhumb import rhumb_inverse
 
     wps = [{"index": i + 1, "name": w.name, "lat": w.lat, "lon": w.lon,
-            "arrival_radius_nm": _nm(w.arrival_radius_m)} for i, w in enumerate(route.waypoints)]
+            "arrival_radius_nm": nm(w.arrival_radius_m)} for i, w in enumerate(route.waypoints)]
     legs = []
     for k, lg in enumerate(route.legs):
         a, b = route.waypoints[k], route.waypoints[k + 1]
@@ -40,8 +37,8 @@ def route_record(plan_info, route) -> dict:
             course = None  # a zero-length leg has no course
         legs.append({"leg": k + 1, "from": a.name, "to": b.name, "sailing": lg.sailing,
                      "distance_nm": dist, "initial_course": course, "speed_kn": lg.speed_kn,
-                     "xtl_port_nm": _nm(lg.xtl_port_m), "xtl_stbd_nm": _nm(lg.xtl_stbd_m),
-                     "turn_radius_nm": _nm(lg.turn_radius_m), "notes": lg.notes})
+                     "xtl_port_nm": nm(lg.xtl_port_m), "xtl_stbd_nm": nm(lg.xtl_stbd_m),
+                     "turn_radius_nm": nm(lg.turn_radius_m), "notes": lg.notes})
     return {"plan_id": plan_info.plan_id, "plan": plan_info.name, "revision": route.revision,
             "note": route.note, "route_name": route.name,
             "total_distance_nm": sum(x["distance_nm"] for x in legs),
@@ -83,18 +80,15 @@ def _leg_from_options(sailing, speed, xtl, xtl_port, xtl_stbd, turn_radius, note
     return changes
 
 
-def _leg_options(func: Callable) -> Callable:
-    for opt in reversed([
-        click.option("--sailing", metavar="great-circle|rhumb", help="How the leg is sailed."),
-        click.option("--speed", metavar="KN", help="Planned speed, knots."),
-        click.option("--xtl", metavar="NM", help="Cross-track limit on both sides, NM."),
-        click.option("--xtl-port", metavar="NM", help="Port cross-track limit, NM."),
-        click.option("--xtl-stbd", metavar="NM", help="Starboard cross-track limit, NM."),
-        click.option("--turn-radius", metavar="NM", help="Turn radius at the leg's end, NM."),
-        click.option("--notes", help="Leg notes."),
-    ]):
-        func = opt(func)
-    return func
+_leg_options = options(
+    click.option("--sailing", metavar="great-circle|rhumb", help="How the leg is sailed."),
+    click.option("--speed", metavar="KN", help="Planned speed, knots."),
+    click.option("--xtl", metavar="NM", help="Cross-track limit on both sides, NM."),
+    click.option("--xtl-port", metavar="NM", help="Port cross-track limit, NM."),
+    click.option("--xtl-stbd", metavar="NM", help="Starboard cross-track limit, NM."),
+    click.option("--turn-radius", metavar="NM", help="Turn radius at the leg's end, NM."),
+    click.option("--notes", help="Leg notes."),
+)
 
 
 def _note_option(func: Callable) -> Callable:
@@ -158,10 +152,9 @@ def plan_show(ctx, name, revision, as_json, as_csv) -> None:
         info = book.plan(name)
         route = book.route(info.plan_id, rev)
     rec = route_record(info, route)
-    if as_json and as_csv:
-        raise click.UsageError("choose one of --json and --csv")
+    one_form(as_json, as_csv)
     if as_json:
-        emit_one(rec, True, [])
+        emit_one(rec, True)
         return
     if as_csv:
         rows = []
@@ -228,19 +221,28 @@ def _index(route, text: str, *, allow_end: bool = False) -> int:
     return n - 1
 
 
-@plan_waypoint.command("add")
-@click.argument("plan_name", metavar="PLAN")
-@click.argument("name")
-@click.argument("pos", metavar="POSITION")
-@click.option("--radius", metavar="NM", help="Arrival radius, NM.")
-@_note_option
-@click.pass_context
-def wp_add(ctx, plan_name, name, pos, radius, note) -> None:
-    """Append waypoint NAME at POSITION (the new last leg copies the one before it)."""
+def _waypoint(name: str, pos: str, radius: str | None):
     from passagelog.model import Waypoint
 
     lat, lon = position(f"waypoint {name!r}", pos)
-    wp = Waypoint(name, lat, lon, number("waypoint", "arrival radius (NM)", radius, scale=NM_M))
+    return Waypoint(name, lat, lon,
+                    number("waypoint", "arrival radius (NM)", radius, scale=NM_M))
+
+
+#: NAME POSITION [--radius NM] [--note TEXT] of a waypoint added or inserted.
+_new_waypoint = options(
+    click.argument("name"), click.argument("pos", metavar="POSITION"),
+    click.option("--radius", metavar="NM", help="Arrival radius, NM."),
+    _note_option, click.pass_context,
+)
+
+
+@plan_waypoint.command("add")
+@click.argument("plan_name", metavar="PLAN")
+@_new_waypoint
+def wp_add(ctx, plan_name, name, pos, radius, note) -> None:
+    """Append waypoint NAME at POSITION (the new last leg copies the one before it)."""
+    wp = _waypoint(name, pos, radius)
     with open_book(ctx) as book:
         route = book.route(plan_name).add_waypoint(wp)
         _saved(book, plan_name, route,
@@ -250,17 +252,10 @@ def wp_add(ctx, plan_name, name, pos, radius, note) -> None:
 @plan_waypoint.command("insert")
 @click.argument("plan_name", metavar="PLAN")
 @click.argument("number_text", metavar="N")
-@click.argument("name")
-@click.argument("pos", metavar="POSITION")
-@click.option("--radius", metavar="NM", help="Arrival radius, NM.")
-@_note_option
-@click.pass_context
+@_new_waypoint
 def wp_insert(ctx, plan_name, number_text, name, pos, radius, note) -> None:
     """Insert waypoint NAME at POSITION so that it becomes waypoint N."""
-    from passagelog.model import Waypoint
-
-    lat, lon = position(f"waypoint {name!r}", pos)
-    wp = Waypoint(name, lat, lon, number("waypoint", "arrival radius (NM)", radius, scale=NM_M))
+    wp = _waypoint(name, pos, radius)
     with open_book(ctx) as book:
         route = book.route(plan_name)
         k = _index(route, number_text, allow_end=True)

@@ -11,11 +11,11 @@ import csv
 import json
 import math
 from datetime import datetime, timezone
-from typing import Any, Callable, Iterable
+from typing import Callable, Iterable
 
 import click
 
-from passagelog.cli.common import TABLE_FORMATS, db_path_from
+from passagelog.cli.common import TABLE_FORMATS, db_path_from, options, write_csv
 
 TABLE_CHOICES = ("fixes", "legs", "passages", "episodes", "noon", "gaps", "suspects")
 NM_M = 1852.0
@@ -148,59 +148,38 @@ def run_review(inputs: dict, window_h: float, gap_min: float, include_suspect: b
     )
 
 
-def _input_options(func):
-    opts = [
-        click.argument("voyage", required=False),
-        click.option("--plan", "plan_file", metavar="FILE",
-                     help="Plan file (route CSV, GPX or RTZ) instead of a logbook voyage."),
-        click.option("--plan-format", type=click.Choice(("csv", "gpx", "rtz")),
-                     help="Format of --plan (default: told from the content)."),
-        click.option("--fixes", "fixes_file", metavar="FILE",
-                     help="Fix file (NMEA 0183, GPX or fix CSV) to go with --plan."),
-        click.option("--fixes-format", type=click.Choice(("nmea", "gpx", "csv")),
-                     help="Format of --fixes (default: told from the content)."),
-        click.option("--departure", metavar="TIME",
-                     help="Departure time (UTC, or ship's time with its ZD). Default: the "
-                          "logbook's departure entry or planned departure; the first fix."),
-        click.option("--zd", metavar="ZD",
-                     help="Ship's zone description at departure (e.g. +3). Default: the "
-                          "voyage's; for files, the zone of the first waypoint's longitude."),
-        click.option("--clock-change", "clock_changes", metavar="TIME=ZD", multiple=True,
-                     help="A clock change (new ZD from TIME); repeat as needed."),
-        click.option("--window-h", type=click.FloatRange(min=0.01), default=3.0,
-                     show_default=True, help="Window of the SMG behind the ETA by progress."),
-        click.option("--gap-min", type=click.FloatRange(min=0.01), default=60.0,
-                     show_default=True, help="A longer interval without a fix is a gap."),
-        click.option("--include-suspect", is_flag=True,
-                     help="Let suspect fixes count in the statistics and passages."),
-        click.option("--max-speed", type=click.FloatRange(min=0.01), metavar="KN",
-                     help="Also flag fixes implying more than KN from the previous good fix."),
-        click.option("--arrival-radius", type=click.FloatRange(min=0.0), metavar="NM",
-                     help="Arrival circle for waypoints that have none."),
-    ]
-    for opt in reversed(opts):
-        func = opt(func)
-    return func
+_input_options = options(
+    click.argument("voyage", required=False),
+    click.option("--plan", "plan_file", metavar="FILE",
+                 help="Plan file (route CSV, GPX or RTZ) instead of a logbook voyage."),
+    click.option("--plan-format", type=click.Choice(("csv", "gpx", "rtz")),
+                 help="Format of --plan (default: told from the content)."),
+    click.option("--fixes", "fixes_file", metavar="FILE",
+                 help="Fix file (NMEA 0183, GPX or fix CSV) to go with --plan."),
+    click.option("--fixes-format", type=click.Choice(("nmea", "gpx", "csv")),
+                 help="Format of --fixes (default: told from the content)."),
+    click.option("--departure", metavar="TIME",
+                 help="Departure time (UTC, or ship's time with its ZD). Default: the "
+                      "logbook's departure entry or planned departure; the first fix."),
+    click.option("--zd", metavar="ZD",
+                 help="Ship's zone description at departure (e.g. +3). Default: the "
+                      "voyage's; for files, the zone of the first waypoint's longitude."),
+    click.option("--clock-change", "clock_changes", metavar="TIME=ZD", multiple=True,
+                 help="A clock change (new ZD from TIME); repeat as needed."),
+    click.option("--window-h", type=click.FloatRange(min=0.01), default=3.0,
+                 show_default=True, help="Window of the SMG behind the ETA by progress."),
+    click.option("--gap-min", type=click.FloatRange(min=0.01), default=60.0,
+                 show_default=True, help="A longer interval without a fix is a gap."),
+    click.option("--include-suspect", is_flag=True,
+                 help="Let suspect fixes count in the statistics and passages."),
+    click.option("--max-speed", type=click.FloatRange(min=0.01), metavar="KN",
+                 help="Also flag fixes implying more than KN from the previous good fix."),
+    click.option("--arrival-radius", type=click.FloatRange(min=0.0), metavar="NM",
+                 help="Arrival circle for waypoints that have none."),
+)
 
 
 # ------------------------------------------------------------------------------- output
-
-
-def _csv_cell(value: Any) -> str:
-    if value is None:
-        return ""
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, float):
-        return repr(value) if math.isfinite(value) else ""
-    return str(value)
-
-
-def write_csv(rows: Iterable[dict], columns: tuple[str, ...], out) -> None:
-    writer = csv.writer(out, lineterminator="\n")
-    writer.writerow(columns)
-    for row in rows:
-        writer.writerow([_csv_cell(row.get(c)) for c in columns])
 
 
 def _csv_text(value: str) -> str:
@@ -210,8 +189,8 @@ def _csv_text(value: str) -> str:
 
 
 def _csv_column(values: list) -> list[str]:
-    """One column of cells, formatted as :func:`_csv_cell` would (but a column at a time:
-    the list's own repr formats numbers in C)."""
+    """One column of cells, formatted as :func:`passagelog.cli.common.csv_cell` would (but
+    a column at a time: the list's own repr formats numbers in C)."""
     if not values:
         return []
     sample = next((v for v in values if v is not None), None)

@@ -8,6 +8,7 @@ import sys
 from datetime import datetime, timedelta, timezone
 from pathlib import Path
 
+import click
 import pytest
 from click.testing import CliRunner
 from geographiclib.geodesic import Geodesic
@@ -371,3 +372,16 @@ def test_installed_entry_point_maps_errors_and_exit_codes(tmp_path):
     assert (r.returncode, r.stdout) == (0, "0 records checked: the chains verify\n")
     r = main("fix", "list")
     assert r.returncode == 2
+
+
+def test_json_and_csv_together_are_refused_before_anything_is_written(kept):
+    db = kept
+    before = _counts(db)
+    for args in (["craft", "add", "Tern", "--json", "--csv"],
+                 ["voyage", "add", "Another run", "--json", "--csv"],
+                 ["craft", "list", "--json", "--csv"], ["plan", "show", "Solent", "--json",
+                                                        "--csv"]):
+        r = run(db, *args)
+        assert isinstance(r.exception, click.UsageError), (args, r.exception)
+        assert "choose one of --json and --csv" in str(r.exception) and r.stdout == ""
+    assert _counts(db) == before
