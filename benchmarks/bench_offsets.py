@@ -15,33 +15,14 @@ from __future__ import annotations
 
 import argparse
 import sys
-import time
 
 import numpy as np
+from _common import best_of, loop_offsets, scatter_about
 
 from passagelog.nav.geodesic import inverse_np
 from passagelog.nav.legs import make_leg
 
 LEG = (50.0, -4.0, 40.0, -70.0)  # western approaches of the English Channel -> off Nantucket
-
-
-def positions(leg, n: int, rng) -> tuple[np.ndarray, np.ndarray]:
-    """Fixes scattered about the leg: along -10 % .. 110 %, up to some 100 NM either side."""
-    along = rng.uniform(-0.1, 1.1, n) * leg.distance_m
-    lat, lon = leg.points_at_np(along)
-    lat = np.clip(lat + rng.normal(0.0, 0.8, n), -89.0, 89.0)
-    lon = lon + rng.normal(0.0, 1.2, n)
-    lon = (lon + 180.0) % 360.0 - 180.0
-    return lat, lon
-
-
-def best_of(fn, repeat: int) -> float:
-    best = float("inf")
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t0)
-    return best
 
 
 def bench(sailing: str, n: int, m: int, seed: int) -> float | None:
@@ -51,29 +32,19 @@ def bench(sailing: str, n: int, m: int, seed: int) -> float | None:
         print(f"{sailing}: not available in this build ({exc})", flush=True)
         return None
     rng = np.random.default_rng(seed)
-    lat, lon = positions(leg, n, rng)
+    lat, lon = scatter_about(leg, n, rng)  # up to some 250 NM either side
 
     t_batch = best_of(lambda: leg.offsets_np(lat, lon), 2)
     xte, along = leg.offsets_np(lat, lon)
-
-    sub = rng.choice(n, size=m, replace=False)
-    loop_out = np.empty((m, 2))
-
-    def loop():
-        for k, i in enumerate(sub):
-            loop_out[k] = leg.offset(float(lat[i]), float(lon[i]))
-
-    t_loop = best_of(loop, 1)
+    loop = loop_offsets(leg, lat, lon, xte, along, m, rng)
     # floor: one vectorised inverse problem per position (pyproj's C geodesic)
     rlat, rlon = lat[::-1].copy(), lon[::-1].copy()
     t_floor = best_of(lambda: inverse_np(lat, lon, rlat, rlon), 2)
 
     per_batch = t_batch / n
-    per_loop = t_loop / m
+    per_loop = loop.seconds_each
     per_floor = t_floor / n
     ratio = per_loop / per_batch
-    dx = np.max(np.abs(xte[sub] - loop_out[:, 0]))
-    da = np.max(np.abs(along[sub] - loop_out[:, 1]))
     print(f"{sailing} leg {LEG[0]:g},{LEG[1]:g} -> {LEG[2]:g},{LEG[3]:g} "
           f"({leg.distance_m / 1852:.1f} NM), |XTE| up to {np.max(np.abs(xte)) / 1852:.0f} NM")
     print(f"  batch   {n:>9,} positions  {1 / per_batch:>12,.0f} positions/s "
@@ -84,8 +55,9 @@ def bench(sailing: str, n: int, m: int, seed: int) -> float | None:
           f"{'met' if ratio >= 100 else 'NOT met'}")
     print(f"  floor   one vectorised inverse per position: {1 / per_floor:,.0f} positions/s; "
           f"the batch costs {per_batch / per_floor:.2f} of those per position")
-    print(f"  same accuracy: batch vs loop max |dXTE| {dx * 1e3:.4f} mm, "
-          f"max |dalong| {da * 1e3:.4f} mm ({'ok' if max(dx, da) < 1e-3 else 'DIFFERENT'})")
+    print(f"  same accuracy: batch vs loop max |dXTE| {loop.max_dxte_m * 1e3:.4f} mm, "
+          f"max |dalong| {loop.max_dalong_m * 1e3:.4f} mm "
+          f"({'ok' if loop.max_diff_m < 1e-3 else 'DIFFERENT'})")
     return ratio
 
 

@@ -19,9 +19,9 @@ from __future__ import annotations
 
 import argparse
 import sys
-import time
 
 import numpy as np
+from _common import best_of, loop_offsets, scatter_about
 
 from passagelog.nav import rhumb
 from passagelog.nav.rhumb import (
@@ -39,15 +39,6 @@ LEGS = {
     "antimeridian": (10.0, 170.0, 14.0, -172.0),
     "high latitude 84N -> 85N": (84.0, -170.0, 85.0, 170.0),
 }
-
-
-def best_of(fn, repeat: int = 2) -> float:
-    best = float("inf")
-    for _ in range(repeat):
-        t0 = time.perf_counter()
-        fn()
-        best = min(best, time.perf_counter() - t0)
-    return best
 
 
 def bench_problems(n: int, m: int, rng) -> None:
@@ -70,11 +61,8 @@ def bench_problems(n: int, m: int, rng) -> None:
 
 def bench_offsets(name: str, leg_ends, n: int, m: int, rng) -> float:
     leg = RhumbLeg(*leg_ends)
-    along = rng.uniform(-0.1, 1.1, n) * leg.distance_m
-    lat, lon = leg.points_at_np(along)
-    spread = 0.1 if "high" in name else 0.8  # degrees: some 6 / 50 NM
-    lat = np.clip(lat + rng.normal(0.0, spread, n), -89.0, 89.0)
-    lon = (lon + rng.normal(0.0, 1.5 * spread, n) + 180.0) % 360.0 - 180.0
+    # degrees: some 6 NM near the pole, 50 NM elsewhere
+    lat, lon = scatter_about(leg, n, rng, spread_deg=0.1 if "high" in name else 0.8)
 
     count = [0]
     real = rhumb._geodesic.inverse_np
@@ -89,19 +77,12 @@ def bench_offsets(name: str, leg_ends, n: int, m: int, rng) -> float:
     finally:
         rhumb._geodesic.inverse_np = real
     t_batch = best_of(lambda: leg.offsets_np(lat, lon)) / n
-    sub = rng.choice(n, size=m, replace=False)
-    out = np.empty((m, 2))
-
-    def loop():
-        for k, i in enumerate(sub):
-            out[k] = leg.offset(float(lat[i]), float(lon[i]))
-
-    t_loop = best_of(loop, 1) / m
-    diff = max(np.max(np.abs(xte[sub] - out[:, 0])), np.max(np.abs(al[sub] - out[:, 1])))
-    ratio = t_loop / t_batch
-    print(f"offsets  {name:<26} batch {t_batch * 1e6:5.2f} us, loop {t_loop * 1e6:6.1f} us: "
-          f"{ratio:4.0f}x; {count[0] / n:.2f} inversions/position; "
-          f"max |batch - loop| {diff * 1e3:.5f} mm")
+    loop = loop_offsets(leg, lat, lon, xte, al, m, rng)
+    ratio = loop.seconds_each / t_batch
+    print(f"offsets  {name:<26} batch {t_batch * 1e6:5.2f} us, "
+          f"loop {loop.seconds_each * 1e6:6.1f} us: {ratio:4.0f}x; "
+          f"{count[0] / n:.2f} inversions/position; "
+          f"max |batch - loop| {loop.max_diff_m * 1e3:.5f} mm")
     return ratio
 
 
