@@ -29,7 +29,10 @@ the candidates lie farther apart). Along-track and XTE are then continuous for p
 within 90 degrees of arc of the leg; they jump only where two candidates are equally far
 along the line from the middle, near the antipode of the leg's middle, some 90 degrees of arc
 or more from every point of the leg. Such a position gets the geometric figures (finite, a
-foot in the strict sense), but they tell a navigator nothing about that leg.
+foot in the strict sense), but they tell a navigator nothing about that leg. Within about 100
+km of the pole of the leg's great circle (|XTE| near a quarter meridian) the foot is badly
+conditioned: the iteration may not converge (a GeometryError says so), and the foot found may
+not be the candidate nearest the middle; within about 0.6 km there is no foot at all.
 
 The batch version (:meth:`GreatCircleLeg.offsets_np`) evaluates points of the line in numpy
 (the series of geographiclib's ``GeodesicLine``) and runs one vectorised pyproj inverse per
@@ -65,6 +68,10 @@ FAR_RAD = 1.3
 #: does not close on the ellipsoid (one turn in arc is some 2 pi f short of, or beyond, the
 #: place where it passes the position again), so the first foot may be the farther one.
 WRAP_CHECK_RAD = 0.1
+#: Largest move of the foot in one iteration (radians of arc): no foot is farther than a
+#: quarter turn from where a step is taken, and near the pole of the line a secant gain
+#: can otherwise send the iteration several turns round.
+MAX_STEP_RAD = 0.5 * math.pi
 
 
 def _course(azi: float) -> float:
@@ -122,7 +129,7 @@ def _secant_step_np(sig, f, prev_sig, prev_f):
             use = have & np.isfinite(gain) & (gain > 0.02) & (gain < 50.0) & (
                 np.abs(gain - 1.0) > 0.1)
             step = np.where(use, f / np.where(use, gain, 1.0), f)
-    return step
+    return np.clip(step, -MAX_STEP_RAD, MAX_STEP_RAD)
 
 
 def check_point(thing: str, lat: float, lon: float) -> float:
@@ -469,20 +476,31 @@ class GreatCircleLeg:
         wrap = np.abs(sig - half) > math.pi - WRAP_CHECK_RAD
         if wrap.any():
             idx = np.flatnonzero(wrap)
-            sig_b = sig[idx] - np.copysign(2.0 * math.pi, sig[idx] - half)
+            sig_b = self._other_turn(sig[idx], half)
             u_b, v_b = self._plane_np(lat[idx], lon[idx], sig_b)
-            xte_b, sig_b = self._feet_np(lat[idx], lon[idx], sig_b, u_b, v_b, idx)
+            # no answer there (near the pole of the line) leaves the foot found first
+            xte_b, sig_b = self._feet_np(lat[idx], lon[idx], sig_b, u_b, v_b, strict=False)
             mid = 0.5 * self.distance_m
-            better = (np.abs(self._s_of_sigma_np(sig_b) - mid)
-                      < np.abs(self._s_of_sigma_np(sig[idx]) - mid))
+            with np.errstate(invalid="ignore"):
+                better = (np.abs(self._s_of_sigma_np(sig_b) - mid)
+                          < np.abs(self._s_of_sigma_np(sig[idx]) - mid))
             xte[idx] = np.where(better, xte_b, xte[idx])
             sig[idx] = np.where(better, sig_b, sig[idx])
         along = self._s_of_sigma_np(sig)
         return xte.reshape(shape), along.reshape(shape)
 
-    def _feet_np(self, lat, lon, sig, u, v, index=None):
-        """Iterate from the arcs ``sig`` to the feet: ``(xte_m, sig_foot)`` arrays.
-        ``index`` numbers the positions in the caller's batch (for the error message)."""
+    @staticmethod
+    def _other_turn(sig, half):
+        """Where to look for the other candidate foot: the foot's arc brought within half a
+        turn of the middle (near the pole of the line the iteration may have gone round more
+        than once), else one turn the other way round."""
+        turns = np.round((sig - half) / (2.0 * math.pi))
+        turns = np.where(turns == 0.0, np.sign(sig - half), turns)
+        return sig - 2.0 * math.pi * turns
+
+    def _feet_np(self, lat, lon, sig, u, v, strict=True):
+        """Iterate from the arcs ``sig`` to the feet: ``(xte_m, sig_foot)`` arrays. A foot
+        that does not converge raises GeometryError, or with ``strict=False`` is NaN."""
         n = lat.size
         xte = np.empty(n)
         sig_foot = np.empty(n)
@@ -519,10 +537,13 @@ class GreatCircleLeg:
             prev_s, prev_f = prev_s[keep], prev_f[keep]
             lat_t, lon_t = lat_t[keep], lon_t[keep]
             u_t, v_t = u_t[keep], v_t[keep]
+        if not strict:
+            xte[todo] = np.nan
+            sig_foot[todo] = np.nan
+            return xte, sig_foot
         i = int(todo[0])
         raise GeometryError(
-            f"position {i if index is None else int(index[i])} ({lat[i]!r}, {lon[i]!r}): "
-            f"the foot on the great-circle leg "
+            f"position {i} ({lat[i]!r}, {lon[i]!r}): the foot on the great-circle leg "
             f"{self._ends()} did not converge in {FOOT_MAX_ITERATIONS} iterations")
 
     def _gauss_radius_np(self, lat_a, lat_b):
@@ -568,13 +589,17 @@ class GreatCircleLeg:
         xte, sig = self._foot_scalar(lat, lon, sig, u, v)
         half = 0.5 * math.radians(self.arc_deg)
         if abs(sig - half) > math.pi - WRAP_CHECK_RAD:  # as in offsets_np
-            sig_b = sig - math.copysign(2.0 * math.pi, sig - half)
+            sig_b = float(self._other_turn(np.array([sig]), half)[0])
             u_b, v_b = (float(x[0]) for x in self._plane_np(np.array([lat]), np.array([lon]),
                                                             np.array([sig_b])))
-            xte_b, sig_b = self._foot_scalar(lat, lon, sig_b, u_b, v_b)
-            mid = 0.5 * self.distance_m
-            if abs(self._s_of_sigma(sig_b) - mid) < abs(self._s_of_sigma(sig) - mid):
-                xte, sig = xte_b, sig_b
+            try:
+                xte_b, sig_b = self._foot_scalar(lat, lon, sig_b, u_b, v_b)
+            except GeometryError:  # no answer there: the foot found first stands
+                pass
+            else:
+                mid = 0.5 * self.distance_m
+                if abs(self._s_of_sigma(sig_b) - mid) < abs(self._s_of_sigma(sig) - mid):
+                    xte, sig = xte_b, sig_b
         return xte, self._s_of_sigma(sig)
 
     def _s_of_sigma(self, sig12: float) -> float:
@@ -607,7 +632,7 @@ class GreatCircleLeg:
                 if 0.02 < gain < 50.0 and abs(gain - 1.0) > 0.1:
                     step = f / gain
             prev_s, prev_f = sig, f
-            sig += step
+            sig += max(-MAX_STEP_RAD, min(MAX_STEP_RAD, step))
             if abs(ds) < FOOT_TOLERANCE_M:
                 sin_t = math.sin(theta)
                 if dr < 1.0:

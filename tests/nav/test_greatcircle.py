@@ -601,3 +601,26 @@ def test_far_feet_of_random_legs_against_geographiclib():
             assert s == pytest.approx(s_ref, abs=OFFSET_TOL_M), (row, lat, lon, feet, s)
             assert x == pytest.approx(x_ref, abs=OFFSET_TOL_M), (row, lat, lon, feet, x)
         checked += 1
+
+
+@pytest.mark.parametrize("row, pos", [
+    ((-63.36079042413908, 151.35551732273558, 16.830021042951415, -150.57027862006368),
+     (21.467475861313808, 112.85811930747934)),
+    ((-35.701669024653015, 53.40648784504123, -52.64393857971265, -19.916756208601242),
+     (-36.276570906742066, 175.24399964500296)),
+])
+def test_regression_foot_near_the_pole_of_the_line_is_not_turns_away(row, pos):
+    # Positions some tens of km from the pole of the leg's great circle (|XTE| near a
+    # quarter meridian): a secant step sent the foot iteration round the Earth several times
+    # (along-track 248,063,370 m and -224,622,425 m, 5-6 turns). Now a step moves the foot
+    # at most a quarter turn, and the foot is the candidate nearest the leg's middle found
+    # from geographiclib alone (InverseLine / Inverse).
+    leg = GreatCircleLeg(*row)
+    mid = 0.5 * leg.distance_m
+    feet = _feet_geographiclib(row, *pos, scan=3000)
+    s_ref, x_ref = min(feet, key=lambda f: abs(f[0] - mid))
+    xb, ab = leg.offsets_np([pos[0]], [pos[1]])
+    xs, als = leg.offset(*pos)
+    for x, s in ((xb[0], ab[0]), (xs, als)):
+        assert s == pytest.approx(s_ref, abs=OFFSET_TOL_M) and x == pytest.approx(
+            x_ref, abs=OFFSET_TOL_M), (s, x, feet)
