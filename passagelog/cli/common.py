@@ -113,6 +113,13 @@ def iso(dt: datetime | None) -> str | None:
     return dt.astimezone(timezone.utc).isoformat()[:-6] + "Z"
 
 
+def to_second(text: str | None) -> str | None:
+    """An ISO 8601 UTC time for people: whole seconds (the JSON and CSV keep the fraction)."""
+    if text and len(text) > 20 and text[19] == ".":
+        return text[:19] + "Z"
+    return text
+
+
 def csv_cell(value: Any) -> str:
     """A CSV cell of the scripting contract: empty for missing (or a non-finite number),
     ``true``/``false``, reals at full precision."""

@@ -12,7 +12,7 @@ from typing import Callable
 import click
 
 from passagelog.cli.common import (
-    NM_M, emit, emit_one, iso, nm, one_form, options, output_options,
+    NM_M, emit, emit_one, iso, nm, options, output_options, to_second,
 )
 from passagelog.cli.logbook import number, open_book, pos_text, position, whole
 from passagelog.errors import InputError
@@ -137,7 +137,7 @@ def plan_list(ctx, as_json, as_csv) -> None:
                     "created_utc": iso(p.created_utc)} for p in book.list_plans()]
     emit(records, ["plan_id", "name", "latest_revision", "created_utc"], as_json, as_csv,
          [("ID", lambda r: r["plan_id"]), ("NAME", lambda r: r["name"]),
-          ("REVISION", lambda r: r["latest_revision"]), ("CREATED", lambda r: r["created_utc"])])
+          ("REVISION", lambda r: r["latest_revision"]), ("CREATED", lambda r: to_second(r["created_utc"]))])
 
 
 @plan.command("show")
@@ -152,7 +152,6 @@ def plan_show(ctx, name, revision, as_json, as_csv) -> None:
         info = book.plan(name)
         route = book.route(info.plan_id, rev)
     rec = route_record(info, route)
-    one_form(as_json, as_csv)
     if as_json:
         emit_one(rec, True)
         return
@@ -168,7 +167,8 @@ def plan_show(ctx, name, revision, as_json, as_csv) -> None:
                          "turn_radius_nm": lg.get("turn_radius_nm"), "notes": lg.get("notes")})
         emit(rows, ROUTE_CSV, False, True)
         return
-    click.echo(f"plan {rec['plan']} revision {rec['revision']}: {rec['note']}")
+    click.echo(f"plan {rec['plan']} revision {rec['revision']}{_route_named(rec)}: "
+               f"{rec['note']}")
     emit(rec["waypoints"], [], False, False, [
         ("WP", lambda r: r["index"]), ("NAME", lambda r: r["name"]),
         ("POSITION", lambda r: pos_text(r["lat"], r["lon"])),
@@ -184,6 +184,13 @@ def plan_show(ctx, name, revision, as_json, as_csv) -> None:
          else f"{_fmt2(r['xtl_port_nm']) or '-'}/{_fmt2(r['xtl_stbd_nm']) or '-'}"),
         ("NOTES", lambda r: r["notes"] or None)])
     click.echo(f"total {rec['total_distance_nm']:.2f} NM")
+
+
+def _route_named(rec: dict) -> str:
+    """`` (route 'X')`` when the route keeps a name other than the plan's (an imported route
+    keeps the name in its file), else nothing."""
+    route_name = rec.get("route_name")
+    return f" (route {route_name!r})" if route_name and route_name != rec["plan"] else ""
 
 
 def _fmt2(value):
@@ -202,7 +209,7 @@ def plan_history(ctx, name, as_json, as_csv) -> None:
                    for h in book.plan_history(name)]
     emit(records, ["revision", "note", "recorded_utc", "route_name", "waypoint_count"],
          as_json, as_csv, [("REVISION", lambda r: r["revision"]),
-                           ("RECORDED", lambda r: r["recorded_utc"]),
+                           ("RECORDED", lambda r: to_second(r["recorded_utc"])),
                            ("WAYPOINTS", lambda r: r["waypoint_count"]),
                            ("NOTE", lambda r: r["note"])])
 
@@ -212,11 +219,18 @@ def plan_waypoint() -> None:
     """Add, insert, move, change or delete a waypoint (each a new revision)."""
 
 
-def _index(route, text: str, *, allow_end: bool = False) -> int:
+def _latest(book, plan_name: str):
+    """The plan's own name (as ``plan list`` shows it) and its latest route. The route keeps
+    the name it was created or imported with, which may differ: messages name the plan."""
+    info = book.plan(plan_name)
+    return info.name, book.route(info.plan_id)
+
+
+def _index(route, text: str, *, plan: str, allow_end: bool = False) -> int:
     n = whole("waypoint", "number", text)
     top = len(route.waypoints) + (1 if allow_end else 0)
     if not 1 <= n <= top:
-        raise InputError(f"plan {route.name!r} waypoint number {n} does not exist; it has "
+        raise InputError(f"plan {plan!r} waypoint number {n} does not exist; it has "
                          f"waypoints 1 to {len(route.waypoints)}")
     return n - 1
 
@@ -257,8 +271,8 @@ def wp_insert(ctx, plan_name, number_text, name, pos, radius, note) -> None:
     """Insert waypoint NAME at POSITION so that it becomes waypoint N."""
     wp = _waypoint(name, pos, radius)
     with open_book(ctx) as book:
-        route = book.route(plan_name)
-        k = _index(route, number_text, allow_end=True)
+        name_, route = _latest(book, plan_name)
+        k = _index(route, number_text, plan=name_, allow_end=True)
         _saved(book, plan_name, route.insert_waypoint(k, wp),
                note or f"waypoint {name} inserted as waypoint {k + 1}")
 
@@ -273,8 +287,8 @@ def wp_move(ctx, plan_name, number_text, pos, note) -> None:
     """Move waypoint N to POSITION."""
     lat, lon = position("waypoint", pos)
     with open_book(ctx) as book:
-        route = book.route(plan_name)
-        k = _index(route, number_text)
+        name_, route = _latest(book, plan_name)
+        k = _index(route, number_text, plan=name_)
         old = route.waypoints[k]
         _saved(book, plan_name, route.move_waypoint(k, lat, lon),
                note or f"waypoint {k + 1} {old.name} moved from {pos_text(old.lat, old.lon)} "
@@ -294,8 +308,8 @@ def wp_set(ctx, plan_name, number_text, name, radius, note) -> None:
 
     r = number("waypoint", "arrival radius (NM)", radius, scale=NM_M)
     with open_book(ctx) as book:
-        route = book.route(plan_name)
-        k = _index(route, number_text)
+        name_, route = _latest(book, plan_name)
+        k = _index(route, number_text, plan=name_)
         old = route.waypoints[k]
         changes = {}
         if name is not None:
@@ -317,8 +331,8 @@ def wp_set(ctx, plan_name, number_text, name, radius, note) -> None:
 def wp_delete(ctx, plan_name, number_text, note) -> None:
     """Delete waypoint N (an inner one joins its two legs)."""
     with open_book(ctx) as book:
-        route = book.route(plan_name)
-        k = _index(route, number_text)
+        name_, route = _latest(book, plan_name)
+        k = _index(route, number_text, plan=name_)
         _saved(book, plan_name, route.delete_waypoint(k),
                note or f"waypoint {k + 1} {route.waypoints[k].name} deleted")
 
@@ -343,9 +357,9 @@ def leg_set(ctx, plan_name, number_text, sailing, speed, xtl, xtl_port, xtl_stbd
         raise click.UsageError("nothing to change: give at least one leg option")
     n = whole("leg", "number", number_text)
     with open_book(ctx) as book:
-        route = book.route(plan_name)
+        name_, route = _latest(book, plan_name)
         if not 1 <= n <= len(route.legs):
-            raise InputError(f"plan {route.name!r} leg {n} does not exist; it has legs 1 to "
+            raise InputError(f"plan {name_!r} leg {n} does not exist; it has legs 1 to "
                              f"{len(route.legs)}")
         shown = {k: (v / NM_M if k.endswith("_m") else v) for k, v in changes.items()}
         desc = ", ".join(f"{k.replace('_m', '_nm') if k.endswith('_m') else k} {v:g}"

@@ -99,7 +99,7 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
             "plan": route, "fixes": fixes, "entries": _clock_changes(clock_changes),
             "zd_minutes": zd_minutes, "departure_utc": _time(departure, "--departure"),
             "planned_departure_utc": None, "voyage": "", "source": f"{plan_file}, {fixes_file}",
-            "plan_name": route.name,
+            "plan_name": route.name, "plan_labels": [route.name],
         }
     from passagelog.store import Logbook
 
@@ -118,18 +118,39 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
             raise click.UsageError(f"voyage {v.name!r} has no plan assigned")
         fixes = book.fix_arrays(v)
         entries = list(book.entries(v)) + _clock_changes(clock_changes)
+        labels = plan_labels(book.plan_assignments(v), plan)
     dep = _time(departure, "--departure")
     if dep is None and not any(e.kind == "departure" for e in entries):
         dep = v.departure_utc
     from passagelog.nav.zonetime import parse_zd
 
-    last = plan[-1][1]
     return {
         "plan": plan, "fixes": fixes, "entries": entries,
         "zd_minutes": parse_zd(zd) if zd else v.zd_minutes, "departure_utc": dep,
         "planned_departure_utc": v.departure_utc, "voyage": v.name, "source": str(path),
-        "plan_name": f"{last.name}, revision {last.revision}" if last.revision else last.name,
+        "plan_name": labels[-1], "plan_labels": labels,
     }
+
+
+def plan_labels(assignments, schedule) -> list[str]:
+    """A label for each plan revision in force over a voyage (in the order of
+    ``Logbook.plan_schedule``, which these follow: by the time from which each is in force,
+    of two from the same time the one recorded later): the plan's name as the logbook's plan
+    commands give it, its revision, and the route's own name when that differs (an imported
+    route keeps the one in its file): ``Coastal, revision 2 (route 'Skellan Sound')``."""
+    chosen = {}
+    for a in assignments:
+        chosen[a.from_utc] = a
+    ordered = sorted(chosen.values(), key=lambda a: (
+        a.from_utc is not None, a.from_utc.timestamp() if a.from_utc else 0.0))
+    if len(ordered) != len(schedule):  # not as expected: fall back on the routes' names
+        ordered = [None] * len(schedule)
+    out = []
+    for a, (_, route) in zip(ordered, schedule):
+        name = route.name if a is None else a.plan_name
+        out.append(name + (f", revision {route.revision}" if route.revision else "")
+                   + (f" (route {route.name!r})" if route.name != name else ""))
+    return out
 
 
 def run_review(inputs: dict, window_h: float, gap_min: float, include_suspect: bool,
@@ -389,6 +410,13 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
     return lines
 
 
+def _label_at(inputs: dict, revision: int) -> str:
+    """The label of the plan revision in force at the fix (``revision`` indexes the
+    schedule); for files, whose routes may be a sequence, the name of the last."""
+    labels = inputs["plan_labels"]
+    return labels[revision] if 0 <= revision < len(labels) else inputs["plan_name"]
+
+
 @click.command("status")
 @_input_options
 @click.option("--json", "as_json", is_flag=True, help="Print JSON for scripts.")
@@ -412,6 +440,6 @@ def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
     clocks = clocks_from(inputs["zd_minutes"], inputs["entries"])
     now_dt = _time(now, "--now") if now else datetime.now(timezone.utc)
     for line in status_lines(st, zd_at=clocks.zd_at, now_s=now_dt.timestamp(),
-                             voyage=inputs["voyage"], plan=inputs["plan_name"]):
+                             voyage=inputs["voyage"], plan=_label_at(inputs, st.revision)):
         click.echo(line)
     click.echo(f"Caution: {CAUTION}", err=True)

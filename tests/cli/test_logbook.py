@@ -385,3 +385,41 @@ def test_json_and_csv_together_are_refused_before_anything_is_written(kept):
         assert isinstance(r.exception, click.UsageError), (args, r.exception)
         assert "choose one of --json and --csv" in str(r.exception) and r.stdout == ""
     assert _counts(db) == before
+
+
+def test_a_plan_named_apart_from_its_route_is_called_by_the_plan_name(db):
+    """A route imported under a plan name keeps its own name (the one in its file): the plan
+    commands, their messages and status name the plan, and say the route's name beside it."""
+    from passagelog.model import LegPlan, Route, Waypoint
+    from passagelog.store import Logbook
+
+    route = Route("Skellan Sound survey transit",
+                  (Waypoint("A", 50.0, -1.0), Waypoint("B", 50.0, -1.5)), (LegPlan(),))
+    with Logbook.open(db) as book:
+        book.create_plan(route, "imported from route.rtz", name="Coastal")
+    assert ok(db, "plan", "list").splitlines()[1].split()[:3] == ["1", "Coastal", "1"]
+    assert ok(db, "plan", "show", "Coastal").splitlines()[0] == (
+        "plan Coastal revision 1 (route 'Skellan Sound survey transit'): imported from "
+        "route.rtz")
+    assert ok(db, "plan", "history", "Coastal").splitlines()[1].split()[:3] == [
+        "1", "2026-03-02T08:00:02Z", "2"]
+    assert err(db, "plan", "waypoint", "move", "Coastal", "9", "50N 1W") == (
+        "plan 'Coastal' waypoint number 9 does not exist; it has waypoints 1 to 2")
+    assert err(db, "plan", "leg", "set", "1", "4", "--speed", "5") == (
+        "plan 'Coastal' leg 4 does not exist; it has legs 1 to 1")
+    ok(db, "voyage", "add", "Transit", "--plan", "Coastal")
+    ok(db, "fix", "add", "Transit", "50N 1 10W", "--time", "2026-03-01T10:00Z")
+    status = ok(db, "status", "Transit", "--now", "2026-03-01T10:10Z").splitlines()
+    assert status[1] == "Plan         Coastal, revision 1 (route 'Skellan Sound survey transit')"
+    # a plan created here has the route's name: nothing more is said
+    ok(db, "plan", "copy", "Coastal", "Coastal B")
+    assert ok(db, "plan", "show", "Coastal B").splitlines()[0] == (
+        "plan Coastal B revision 1: copied from plan Coastal revision 1")
+
+
+def test_record_times_are_shown_to_the_second():
+    from passagelog.cli.common import to_second
+
+    assert to_second("2026-12-02T06:54:02.559775Z") == "2026-12-02T06:54:02Z"
+    assert to_second("2026-12-02T06:54:02Z") == "2026-12-02T06:54:02Z"
+    assert to_second(None) is None
