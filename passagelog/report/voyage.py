@@ -82,8 +82,9 @@ def voyage_report_html(review: Review, header: VoyageHeader, provenance: Provena
         ("From", header.from_place), ("To", header.to_place),
         ("Departure (UTC)", f"{dep:%Y-%m-%d %H:%M}Z" if dep else ""),
         ("Fixes reviewed", str(len(fx))),
-        ("Plan", f"{route.name}" + (f", revision {route.revision}"
-                                     if route.revision is not None else "")),
+        # the plan as its logbook names it (the provenance's label) or else the route's name
+        ("Plan", provenance.plan if provenance and provenance.plan else f"{route.name}" + (
+            f", revision {route.revision}" if route.revision is not None else "")),
     ]
     head = "<table class=\"prov\">" + "".join(
         f"<tr><td>{esc(k)}</td><td>{esc(v)}</td></tr>" for k, v in head_rows if v) + "</table>"

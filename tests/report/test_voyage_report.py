@@ -125,3 +125,16 @@ def test_display_units():
     assert display_value("eta_utc", None) is None
     assert display_value("share_outside", 0.25) == "25.0%"
     assert display_value("skipped", False) == "no"
+
+
+def test_report_names_the_plan_as_the_logbook_does():
+    """The header's plan row is the provenance's label of the plan in force (the plan's
+    own name, which an imported route's name may differ from); without one, the route's."""
+    route, fixes = _voyage()
+    rv = reconcile(route, fixes)
+    label = "Coastal, revision 2 (route 'Test passage')"
+    html = voyage_report_html(rv, VoyageHeader(name="V"),
+                              Provenance(source="log.sqlite", voyage="V", plan=label))
+    assert html.count(f"<td>Plan</td><td>{esc(label)}</td>") == 2  # header and provenance
+    html = voyage_report_html(rv, VoyageHeader(name="V"), Provenance(source="f.csv"))
+    assert html.count(f"<td>Plan</td><td>{esc(route.name)}</td>") == 1
