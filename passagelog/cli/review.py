@@ -90,10 +90,9 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
 
         route = read_route(plan_file, fmt=_route_fmt(plan_format))
         fixes, summary = read_fixes(fixes_file, fmt=_fix_fmt(fixes_format))
-        rejected = sum(summary.rejected.values())
-        if rejected:
-            click.echo(f"{fixes_file}: {len(fixes)} fixes read, {rejected} lines rejected",
-                       err=True)
+        if summary.rejected:  # what was left out, and where, as import says it
+            for line in summary.report_lines():
+                click.echo(line, err=True)
         zd_minutes = parse_zd(zd) if zd else 60 * zd_from_lon(route.waypoints[0].lon)
         return {
             "plan": route, "fixes": fixes, "entries": _clock_changes(clock_changes),
