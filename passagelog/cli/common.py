@@ -115,7 +115,7 @@ def iso(dt: datetime | None) -> str | None:
 
 def to_second(text: str | None) -> str | None:
     """An ISO 8601 UTC time for people: whole seconds (the JSON and CSV keep the fraction)."""
-    if text and len(text) > 20 and text[19] == ".":
+    if text and len(text) > 20 and text[19] == "." and text.endswith("Z") and text[10] == "T":
         return text[:19] + "Z"
     return text
 
@@ -141,13 +141,15 @@ def write_csv(rows, columns, out) -> None:
 
 
 def human_cell(value: Any) -> str:
-    if value is None:
+    """A cell for people: ``-`` for nothing (or empty text), ``yes``/``no``, reals to 0.1,
+    record times to the second."""
+    if value is None or value == "":
         return "-"
     if isinstance(value, bool):
         return "yes" if value else "no"
     if isinstance(value, float):
         return f"{value:.1f}"
-    return str(value)
+    return to_second(str(value))
 
 
 def emit(records: list[dict], columns: list[str], as_json: bool, as_csv: bool,

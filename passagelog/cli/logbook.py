@@ -282,17 +282,25 @@ def voyage_show(ctx, name, as_json, as_csv) -> None:
     lines = [("voyage", f"{rec['voyage_id']} {rec['name']}"), ("craft", rec["craft"]),
              ("from", rec["from_place"] or None), ("to", rec["to_place"] or None),
              ("departure", rec["departure_utc"]), ("zone", format_zd(rec["zd_minutes"]))]
-    for p in rec["plans"]:
+    plans = rec["plans"]
+    for k, p in enumerate(plans):
+        # of two assignments from the same time the one recorded later is in force
+        replaced = any(q["from_utc"] == p["from_utc"] for q in plans[k + 1:])
         lines.append(("plan", f"{p['plan']} revision {p['revision']} from "
-                              f"{p['from_utc'] or 'the start'}"))
+                              f"{p['from_utc'] or 'the start'}"
+                              + (" (replaced by a later assignment)" if replaced else "")))
     c = rec["counts"]
-    lines.append(("fixes", f"{c['fixes_current']} current ({c['fixes']} records, "
+    lines.append(("fixes", f"{c['fixes_current']} current ({_records(c['fixes'])}, "
                            f"{c['suspect']} suspect)"))
-    lines.append(("entries", f"{c['entries_current']} current ({c['entries']} records)"))
+    lines.append(("entries", f"{c['entries_current']} current ({_records(c['entries'])})"))
     if last:
         lines.append(("latest fix", f"{rec['latest_fix']['time_utc']} "
                                     f"{pos_text(last.lat, last.lon)}"))
     show_record(rec, VOYAGE_COLUMNS, as_json, as_csv, lines)
+
+
+def _records(n: int) -> str:
+    return f"{n} record" + ("" if n == 1 else "s")
 
 
 @voyage.command("assign-plan")

@@ -12,7 +12,7 @@ from typing import Callable
 import click
 
 from passagelog.cli.common import (
-    NM_M, emit, emit_one, iso, nm, options, output_options, to_second,
+    NM_M, emit, emit_one, iso, nm, options, output_options,
 )
 from passagelog.cli.logbook import number, open_book, pos_text, position, whole
 from passagelog.errors import InputError
@@ -137,7 +137,7 @@ def plan_list(ctx, as_json, as_csv) -> None:
                     "created_utc": iso(p.created_utc)} for p in book.list_plans()]
     emit(records, ["plan_id", "name", "latest_revision", "created_utc"], as_json, as_csv,
          [("ID", lambda r: r["plan_id"]), ("NAME", lambda r: r["name"]),
-          ("REVISION", lambda r: r["latest_revision"]), ("CREATED", lambda r: to_second(r["created_utc"]))])
+          ("REVISION", lambda r: r["latest_revision"]), ("CREATED", lambda r: r["created_utc"])])
 
 
 @plan.command("show")
@@ -209,7 +209,7 @@ def plan_history(ctx, name, as_json, as_csv) -> None:
                    for h in book.plan_history(name)]
     emit(records, ["revision", "note", "recorded_utc", "route_name", "waypoint_count"],
          as_json, as_csv, [("REVISION", lambda r: r["revision"]),
-                           ("RECORDED", lambda r: to_second(r["recorded_utc"])),
+                           ("RECORDED", lambda r: r["recorded_utc"]),
                            ("WAYPOINTS", lambda r: r["waypoint_count"]),
                            ("NOTE", lambda r: r["note"])])
 

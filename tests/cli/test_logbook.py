@@ -423,3 +423,19 @@ def test_record_times_are_shown_to_the_second():
     assert to_second("2026-12-02T06:54:02.559775Z") == "2026-12-02T06:54:02Z"
     assert to_second("2026-12-02T06:54:02Z") == "2026-12-02T06:54:02Z"
     assert to_second(None) is None
+
+
+def test_voyage_show_marks_a_replaced_plan_assignment_and_counts_in_words(kept):
+    db = kept
+    ok(db, "voyage", "assign-plan", "Solent run", "Solent", "--revision", "1")
+    shown = ok(db, "voyage", "show", "Solent run").splitlines()
+    plans = [line for line in shown if line.startswith("plan ")]
+    assert plans[-2].endswith("from the start (replaced by a later assignment)")
+    assert plans[-1] == "plan        Solent revision 1 from the start"
+    assert "entries     0 current (0 records)" in shown
+    entry = ok(db, "entry", "add", "Solent run", "remark", "--time", "2026-03-01T08:00Z")
+    assert entry.startswith("entry 1 ")
+    assert "entries     1 current (1 record)" in ok(db, "voyage", "show", "Solent run")
+    shown = ok(db, "entry", "show", "1").splitlines()
+    assert "text          -" in shown  # empty text is shown as a dash
+    assert [line for line in shown if line.startswith("recorded_utc")][0].endswith("Z")
