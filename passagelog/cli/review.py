@@ -16,6 +16,7 @@ from typing import Callable, Iterable
 import click
 
 from passagelog.cli.common import TABLE_FORMATS, db_path_from, options, write_csv
+from passagelog.errors import InputError
 
 TABLE_CHOICES = ("fixes", "legs", "passages", "episodes", "noon", "gaps", "suspects")
 NM_M = 1852.0
@@ -51,7 +52,6 @@ def _fix_fmt(name: str | None) -> str | None:
 def _time(text: str | None, what: str):
     if not text:
         return None
-    from passagelog.errors import InputError
     from passagelog.nav.zonetime import parse_time_utc
 
     try:
@@ -61,7 +61,6 @@ def _time(text: str | None, what: str):
 
 
 def _clock_changes(items: tuple[str, ...]):
-    from passagelog.errors import InputError
     from passagelog.model import LogEntry
     from passagelog.nav.zonetime import parse_zd
 
@@ -114,7 +113,8 @@ def load_inputs(ctx: click.Context, voyage: str | None, plan_file: str | None,
             v = book.voyage(voyage)
         plan = book.plan_schedule(v)
         if not plan:
-            raise click.UsageError(f"voyage {v.name!r} has no plan assigned")
+            raise InputError(f"voyage {v.name!r} has no plan assigned; put one in force with "
+                             f"'passagelog voyage assign-plan VOYAGE PLAN'")
         fixes = book.fix_arrays(v)
         entries = list(book.entries(v)) + _clock_changes(clock_changes)
         labels = plan_labels(book.plan_assignments(v), plan)
@@ -431,6 +431,11 @@ def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
 
     inputs = load_inputs(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format,
                          departure, zd, clock_changes)
+    if not len(inputs["fixes"]):  # one line that says what to do, before the engine
+        raise InputError(
+            f"voyage {inputs['voyage']!r} has no fixes yet: nothing to show against the plan "
+            "(log one with 'passagelog fix add', or import a fix file)" if inputs["voyage"]
+            else f"{fixes_file} holds no valid fix: nothing to show against the plan")
     st = run_review(inputs, window_h, gap_min, include_suspect, max_speed, arrival_radius,
                     latest_only=True)
     if as_json:

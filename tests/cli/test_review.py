@@ -256,3 +256,31 @@ def test_the_examples_in_docs_cli_md_are_as_printed(tmp_path):
         assert got[0] == shown[0] and got[-1] == shown[-1]  # the foot iteration may move
         assert [float(x) for x in got[1:-1]] == pytest.approx([float(x) for x in shown[1:-1]],
                                                               abs=1e-6)
+
+
+def test_status_without_fixes_or_plan_says_what_to_do(tmp_path):
+    from passagelog.store import Logbook
+
+    db = tmp_path / "log.sqlite"
+    with Logbook.open(db) as book:
+        book.add_voyage(Voyage("Bare"))
+        v = book.add_voyage(Voyage("Planned"))
+        plan_id, _ = book.create_plan(_route(), "created")
+        book.assign_plan(v, plan_id)
+    r = run(["--db", str(db), "status", "Bare"])
+    assert r.exit_code == 1 and r.stdout == ""
+    assert str(r.exception) == ("voyage 'Bare' has no plan assigned; put one in force with "
+                                "'passagelog voyage assign-plan VOYAGE PLAN'")
+    r = run(["--db", str(db), "status", "Planned"])
+    assert r.exit_code == 1 and r.stdout == ""
+    assert str(r.exception).startswith("voyage 'Planned' has no fixes yet")
+    empty = tmp_path / "empty.csv"
+    empty.write_text("time_utc,lat,lon\n", encoding="utf-8")
+    route = tmp_path / "route.csv"
+    from passagelog.formats import write_route
+
+    with open(route, "w", encoding="utf-8", newline="") as fh:
+        write_route(_route(), "route-csv", fh)
+    r = run(["status", "--plan", str(route), "--fixes", str(empty)])
+    assert r.exit_code == 1
+    assert str(r.exception) == f"{empty} holds no valid fix: nothing to show against the plan"
