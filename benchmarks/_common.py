@@ -7,10 +7,21 @@ and they import it as ``_common``.
 
 from __future__ import annotations
 
+import argparse
 import time
 from dataclasses import dataclass
 
 import numpy as np
+
+
+def arguments(doc: str, count_flag: str, count_default: int, argv=None) -> argparse.Namespace:
+    """The command line of an offsets benchmark: how many positions (``count_flag``), how
+    many of them the baseline loop runs on (``--loop``, 300) and the seed (``--seed``)."""
+    ap = argparse.ArgumentParser(description=doc.splitlines()[0])
+    ap.add_argument(count_flag, type=int, default=count_default)
+    ap.add_argument("--loop", type=int, default=300)
+    ap.add_argument("--seed", type=int, default=2026)
+    return ap.parse_args(argv)
 
 
 def best_of(fn, repeat: int = 2) -> float:

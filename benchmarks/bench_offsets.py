@@ -13,11 +13,10 @@ Target (issue 2): batch >= 100x the loop's throughput, differences < 1 mm.
 
 from __future__ import annotations
 
-import argparse
 import sys
 
 import numpy as np
-from _common import best_of, loop_offsets, scatter_about
+from _common import arguments, best_of, loop_offsets, scatter_about
 
 from passagelog.nav.geodesic import inverse_np
 from passagelog.nav.legs import make_leg
@@ -62,11 +61,7 @@ def bench(sailing: str, n: int, m: int, seed: int) -> float | None:
 
 
 def main(argv: list[str] | None = None) -> int:
-    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--positions", type=int, default=1_000_000)
-    ap.add_argument("--loop", type=int, default=300)
-    ap.add_argument("--seed", type=int, default=2026)
-    args = ap.parse_args(argv)
+    args = arguments(__doc__, "--positions", 1_000_000, argv)
     for sailing in ("great-circle", "rhumb"):
         bench(sailing, args.positions, args.loop, args.seed)
     return 0

@@ -17,11 +17,10 @@ Target (issue 2): offsets >= 100x the loop, differences < 1 mm.
 
 from __future__ import annotations
 
-import argparse
 import sys
 
 import numpy as np
-from _common import best_of, loop_offsets, scatter_about
+from _common import arguments, best_of, loop_offsets, scatter_about
 
 from passagelog.nav import rhumb
 from passagelog.nav.rhumb import (
@@ -87,11 +86,7 @@ def bench_offsets(name: str, leg_ends, n: int, m: int, rng) -> float:
 
 
 def main(argv: list[str] | None = None) -> int:
-    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--n", type=int, default=200_000)
-    ap.add_argument("--loop", type=int, default=300)
-    ap.add_argument("--seed", type=int, default=2026)
-    args = ap.parse_args(argv)
+    args = arguments(__doc__, "--n", 200_000, argv)
     rng = np.random.default_rng(args.seed)
     bench_problems(args.n, args.loop * 10, rng)
     for name, ends in LEGS.items():
