@@ -425,7 +425,12 @@ def status(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
            clock_changes, window_h, gap_min, include_suspect, max_speed, arrival_radius,
            as_json, now):
     """The latest fix against the plan: leg, XTE and limit, DTW/BTW, DTG, SMG, ETAs by
-    plan and by recent progress, schedule, set and drift."""
+    plan and by recent progress, schedule, set and drift.
+
+    Times are shown in UTC and in ship's time with the zone in force, distances in NM,
+    speeds in knots; '-' marks what is not known. Scripts read --json (keys in
+    docs/cli.md); the text layout may change.
+    """
     from passagelog import CAUTION
     from passagelog.review.inputs import clocks_from
 
