@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from datetime import datetime
+from datetime import datetime, timezone
 
 from textual import on
 from textual.app import ComposeResult
@@ -12,7 +12,6 @@ from textual.screen import ModalScreen
 from textual.widgets import Button, Input, Label, Static
 
 from passagelog.errors import PassagelogError
-from passagelog.tui import text as fmt
 
 
 class GoToTimeDialog(ModalScreen[datetime | None]):
@@ -26,12 +25,13 @@ class GoToTimeDialog(ModalScreen[datetime | None]):
         self.ref = ref
 
     def compose(self) -> ComposeResult:
-        day = f" (a time alone is on day {self.ref:%d}, the day of the selected fix)" \
-            if self.ref else ""
+        ref = self.ref or datetime.now(timezone.utc)
+        day = (f"; a time alone is on {ref:%Y-%m-%d}, the day of the selected fix"
+               if self.ref else "; a time alone is today's")
         with Vertical(id="goto-box", classes="dialog"):
             yield Label("Go to a time in the fix list", classes="dialog-title")
-            yield Static(f"Time in UTC: 2026-05-02T14:30Z, 02 14:30Z or 14:30{day}. The "
-                         "list shows the fixes from that time on.", id="note-summary")
+            yield Static(f"Time in UTC: {ref:%Y-%m-%d}T14:30Z, {ref:%d} 14:30 or 14:30{day}. "
+                         "The list shows the fixes from that time on.", id="note-summary")
             yield Input(placeholder="UTC, e.g. 14:30", id="goto-time")
             yield Static("", id="goto-msg", classes="field-error")
             with Horizontal(classes="dialog-buttons"):
@@ -56,7 +56,7 @@ class GoToTimeDialog(ModalScreen[datetime | None]):
             msg.update(str(exc))
             msg.set_class(True, "-bad")
         else:
-            msg.update(f"{fmt.utc_time(when)}  ({when:%Y-%m-%d %H:%M}Z)")
+            msg.update(f"{when:%Y-%m-%d %H:%M}Z")
             msg.set_class(False, "-bad")
 
     @on(Input.Submitted, "#goto-time")

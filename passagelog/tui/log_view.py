@@ -16,7 +16,7 @@ above it says which records are on show ("fixes 981–1,000 of 1,000").
 from __future__ import annotations
 
 import re
-from datetime import datetime, timezone
+from datetime import datetime, timedelta, timezone
 
 from rich.text import Text
 from textual import on, work
@@ -36,7 +36,7 @@ MARGIN_ROWS = 20
 MAX_FORM_SATELLITES = 99
 
 FIX_FIELDS = (
-    ("time", "Time", "now (UTC) if empty"),
+    ("time", "Time", "now if empty; 14:30Z or ship's 15:30"),
     ("pos", "Position", "e.g. 47 36.512N 122 20.107W"),
     ("hdop", "HDOP", "optional"),
     ("sats", "Sats", "optional: satellites in use, 0-99"),
@@ -61,11 +61,10 @@ def page_head(first: int, last: int, total: int, span: tuple[datetime, datetime]
     if total == 0:
         return "No fixes in this voyage yet: log one with the form above (Ctrl+S)."
     text = f"Fixes {first:,}–{last:,} of {total:,}, oldest first"
-    extras = []
+    extras = ["PgUp PgDn Home End"]
     if span is not None:
         a, b = (t.astimezone(timezone.utc).date().isoformat() for t in span)
         extras.append(f"{a} UTC" if a == b else f"{a} to {b} UTC")
-    extras.append("PgUp PgDn Home End")
     for extra in extras:
         if len(text) + 3 + len(extra) <= width:
             text += " · " + extra
@@ -94,6 +93,26 @@ def parse_goto_time(text: str, ref: datetime | None) -> datetime:
         raise InputError(f"time {text!r}: day {day} is not in "
                          f"{ref:%Y-%m}; give the full date, e.g. {ref:%Y-%m}-{day:02d}T"
                          f"{hour:02d}:{minute:02d}Z") from None
+
+
+def parse_fix_time(text: str, zd_minutes: int, now: datetime) -> datetime:
+    """The time of a fix typed in the form: a full date and time (no zone: ship's time in
+    zone ``zd_minutes``), or a time of day alone, ``14:30Z`` (UTC) or ``14:30`` (ship's
+    time), taken as the latest such time up to an hour after ``now``."""
+    from passagelog.nav.zonetime import parse_time_utc
+
+    m = re.fullmatch(r"(\d{1,2}):?(\d{2})\s*(Z|UTC)?", text.strip(), re.IGNORECASE)
+    if m is None:
+        return parse_time_utc(text, zd_minutes)
+    hour, minute = int(m[1]), int(m[2])
+    if hour > 23 or minute > 59:
+        raise InputError(f"time {text.strip()!r}: hours run 00-23 and minutes 00-59")
+    zd = 0 if m[3] else zd_minutes
+    local_now = now.astimezone(timezone.utc) - timedelta(minutes=zd)
+    t = local_now.replace(hour=hour, minute=minute, second=0, microsecond=0)
+    if t > local_now + timedelta(hours=1):
+        t -= timedelta(days=1)
+    return t + timedelta(minutes=zd)
 
 
 def entry_zones(entries: list[LogEntry], voyage_zd: int,
@@ -164,6 +183,7 @@ class LogView(Vertical):
     BINDINGS = [
         Binding("ctrl+s", "record", "Record"),
         Binding("ctrl+g", "goto_time", "Go to time"),
+        Binding("ctrl+l", "switch_focus", "List/form"),
         Binding("pageup", "page(-1)", "Page up", show=False),
         Binding("pagedown", "page(1)", "Page down", show=False),
     ]
@@ -173,6 +193,8 @@ class LogView(Vertical):
         ("Log: add the log entry", "add_entry", "Add the entry in the entry form (Ctrl+S)"),
         ("Log: go to a time in the fix list", "goto_time",
          "Show the fixes from a time in UTC (Ctrl+G)"),
+        ("Log: to the list or the form", "switch_focus",
+         "Move between the form and the list under it (Ctrl+L)"),
         ("Log: latest fixes", "latest", "Show the end of the fix list (End in the list)"),
         ("Log: first fixes", "first", "Show the start of the fix list (Home in the list)"),
     )
@@ -181,6 +203,8 @@ class LogView(Vertical):
         super().__init__(**kwargs)
         self.session = session
         #: the fix records held in the list, in time order (a window of the voyage's)
+        self.rows: list[Fix] = []
+        #: the same, once on screen with the cursor placed (what tests and snapshots wait on)
         self.shown: list[Fix] = []
         #: 0-based place of ``shown[0]`` among the voyage's records; how many there are
         self.first_place = 0
@@ -218,7 +242,8 @@ class LogView(Vertical):
                                  allow_blank=False, id="entry-kind", compact=True)
                     yield Static("", classes="field-error")
                     yield Label("Time", classes="field-label")
-                    yield Input(placeholder="empty = now (UTC)", id="entry-time", compact=True)
+                    yield Input(placeholder="now if empty; 14:30Z or ship's 15:30",
+                                id="entry-time", compact=True)
                     yield Static("", id="entry-time-msg", classes="field-error")
                     yield Label("New ZD", classes="field-label")
                     yield Input(placeholder="clock change only, e.g. +2", id="entry-zd",
@@ -327,9 +352,9 @@ class LogView(Vertical):
         reads are a keyset query of a few dozen rows (about a millisecond), done at once so
         that held-down keys stay in step."""
         table = self.query_one("#fix-table", FixTable)
-        if not self.shown:
+        if not self.rows:
             return
-        rows, place = self.shown, self.first_place
+        rows, place = self.rows, self.first_place
         page = table.page_rows()
         target = table.cursor_row + delta
         top = None
@@ -381,24 +406,31 @@ class LogView(Vertical):
         the top of the list when given)."""
         table = self.query_one("#fix-table", FixTable)
         table.clear()
-        self.shown, self.first_place, self.total = rows, place, total
+        self.rows, self.first_place, self.total = rows, place, total
         self.corrected_by = corrected
         for f in rows:
             table.add_row(*self._cells(f), key=str(f.fix_id))
         if rows:
+            # after a refresh: the table knows its new height only then
             self.call_after_refresh(self._place_cursor, cursor, top)
+        else:
+            self.shown = rows
         self.update_head()
 
     def _place_cursor(self, cursor: int, top: int | None) -> None:
         table = self.query_one("#fix-table", FixTable)
-        if not self.shown:
+        if not self.rows:
             return
-        cursor = max(0, min(cursor, len(self.shown) - 1))
+        cursor = max(0, min(cursor, len(self.rows) - 1))
         if top is not None:
             table.scroll_to(y=max(0, top), animate=False, force=True, immediate=True)
         # (scroll=True would first scroll to the row the cursor leaves)
         table.move_cursor(row=cursor, scroll=top is None)
         self.update_head()
+        self.call_after_refresh(self._on_screen, self.rows)
+
+    def _on_screen(self, rows: list[Fix]) -> None:
+        self.shown = rows
 
     def _cells(self, f: Fix) -> list[Text]:
         gone = f.fix_id in self.corrected_by
@@ -421,12 +453,12 @@ class LogView(Vertical):
         """Say which records are on show (1-based places in time order)."""
         table = self.query_one("#fix-table", FixTable)
         head = self.query_one("#fix-head", Static)
-        if not self.shown:
+        if not self.rows:
             head.update(page_head(0, 0, self.total))
             return
-        top = max(0, min(int(table.scroll_y), len(self.shown) - 1))
-        bottom = min(len(self.shown), top + table.page_rows())
-        span = (self.shown[top].time_utc, self.shown[bottom - 1].time_utc)
+        top = max(0, min(int(table.scroll_y), len(self.rows) - 1))
+        bottom = min(len(self.rows), top + table.page_rows())
+        span = (self.rows[top].time_utc, self.rows[bottom - 1].time_utc)
         width = (head.size.width - 2) if head.size.width else 200
         head.update(page_head(self.first_place + top + 1, self.first_place + bottom,
                               self.total, span, width))
@@ -460,7 +492,7 @@ class LogView(Vertical):
         else:
             first = len(ordered) - len(shown) + 1
             head.update(f"Entries {first:,}–{len(ordered):,} of {len(ordered):,}, oldest "
-                        f"first · ship's time in the zone then in force (now ZD "
+                        f"first · ship's time in its zone then (now ZD "
                         f"{fmt.zd_text(self.zone_now)})")
         self.validate_fix_form()
         self.validate_entry_form()
@@ -476,6 +508,14 @@ class LogView(Vertical):
         else:
             table = self.query_one("#entry-table", DataTable)
             table.action_page_down() if direction > 0 else table.action_page_up()
+
+    def action_switch_focus(self) -> None:
+        """Ctrl+L: from the form to the list under it, and back."""
+        if self._fixes_tab():
+            table, field = self.query_one("#fix-table"), self.query_one("#fix-pos")
+        else:
+            table, field = self.query_one("#entry-table"), self.query_one("#entry-text")
+        (field if table.has_focus else table).focus()
 
     def action_latest(self) -> None:
         self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
@@ -493,7 +533,7 @@ class LogView(Vertical):
             return
         self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
         table = self.query_one("#fix-table", FixTable)
-        ref = self.shown[table.cursor_row].time_utc if self.shown else None
+        ref = self.rows[table.cursor_row].time_utc if self.rows else None
 
         def done(when: datetime | None) -> None:
             if when is not None:
@@ -510,6 +550,18 @@ class LogView(Vertical):
         elif event.input.id and event.input.id.startswith("entry-"):
             self.validate_entry_form()
 
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        """Enter in a field of a form goes on to the next; in the last it says how to
+        record (Ctrl+S), rather than logging what may not be finished."""
+        fid = event.input.id or ""
+        if fid in ("fix-remarks", "entry-text"):
+            what = "log the fix" if fid == "fix-remarks" else "add the entry"
+            self.notify(f"Press Ctrl+S to {what}.")
+        elif fid.startswith(("fix-", "entry-")):
+            self.app.action_focus_next()
+        event.stop()
+
     def _field(self, fid: str) -> str:
         return self.query_one(f"#fix-{fid}", Input).value
 
@@ -521,7 +573,6 @@ class LogView(Vertical):
 
     def validate_fix_form(self) -> Fix | None:
         """Check each field, say beside it what is wrong; the fix when all are good."""
-        from passagelog.nav.zonetime import parse_time_utc
         from passagelog.tui.plan_rows import parse_optional_number
 
         values: dict = {}
@@ -539,8 +590,9 @@ class LogView(Vertical):
             return v
 
         zd = self.zone_now
+        now = self.session.now()
         values["time"] = check(
-            "time", lambda t: parse_time_utc(t, zd) if t.strip() else None,
+            "time", lambda t: parse_fix_time(t, zd, now) if t.strip() else None,
             lambda v: f"{fmt.utc_time(v)}  ship {fmt.ship_time(v, zd)}")
         if not self._field("time").strip():
             self._mark("fix-time", "now, when logged", True)
@@ -617,13 +669,13 @@ class LogView(Vertical):
         from passagelog.tui.correction_dialog import CorrectionDialog
 
         table = self.query_one("#fix-table", DataTable)
-        if not self.shown:
+        if not self.rows:
             self.notify("No fix to correct.")
             return
-        fix = self.shown[min(table.cursor_row, len(self.shown) - 1)]
+        fix = self.rows[min(table.cursor_row, len(self.rows) - 1)]
         later = self.corrected_by.get(fix.fix_id)
         if later is not None:
-            held = [f.fix_id for f in self.shown]
+            held = [f.fix_id for f in self.rows]
             if later in held:
                 table.move_cursor(row=held.index(later))
             self.notify(f"Fix {fix.fix_id} is already corrected by fix {later}; to change "
@@ -649,15 +701,16 @@ class LogView(Vertical):
 
     # --- log entries ---
     def validate_entry_form(self) -> LogEntry | None:
-        from passagelog.nav.zonetime import parse_time_utc, parse_zd
+        from passagelog.nav.zonetime import parse_zd
 
         zd = self.zone_now
         good = True
         t = None
         text_t = self.query_one("#entry-time", Input).value
         try:
-            t = parse_time_utc(text_t, zd) if text_t.strip() else None
-            self._mark("entry-time", fmt.utc_time(t) if t else "now, when added", True)
+            t = parse_fix_time(text_t, zd, self.session.now()) if text_t.strip() else None
+            self._mark("entry-time", f"{fmt.utc_time(t)}  ship {fmt.ship_time(t, zd)}" if t
+                       else "now, when added", True)
         except PassagelogError as exc:
             self._mark("entry-time", str(exc), False)
             good = False
@@ -676,7 +729,7 @@ class LogView(Vertical):
             good = False
         text = self.query_one("#entry-text", Input).value.strip()
         if not text and kind in TEXT_REQUIRED:
-            self._mark("entry-text", f"required: say what the {kind} is", True)
+            self._mark("entry-text", "required: what happened", True)
             good = False  # shown as an error only when Ctrl+S is pressed
         else:
             self._mark("entry-text", "", True)
@@ -696,7 +749,7 @@ class LogView(Vertical):
         entry = self.validate_entry_form()
         kind = self.query_one("#entry-kind", Select).value
         if kind in TEXT_REQUIRED and not self.query_one("#entry-text", Input).value.strip():
-            self._mark("entry-text", f"required: say what the {kind} is", False)
+            self._mark("entry-text", "required: what happened", False)
         if entry is None:
             self.query_one("#log-tabs", TabbedContent).active = "log-entries"
             self.notify("The entry is not added: see the fields marked beside them.",

@@ -10,7 +10,9 @@ import pytest
 from passagelog.errors import InputError
 from passagelog.model import Fix, LogEntry
 from passagelog.tui.app import PassagelogApp
-from passagelog.tui.log_view import entry_zones, page_head, parse_goto_time, window_rows
+from passagelog.tui.log_view import (
+    entry_zones, page_head, parse_fix_time, parse_goto_time, window_rows,
+)
 
 T0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
 
@@ -60,6 +62,12 @@ async def test_log_a_fix_see_it_listed_and_correct_it(session):
         assert "01 08:00Z" in str(app.query_one("#fix-time-msg").render())
         await _type(pilot, app, "#fix-sog", "11.5")
         await _type(pilot, app, "#fix-sats", "9")
+        await pilot.press("enter")  # Enter goes on to the next field; it does not log
+        assert app.focused.id == "fix-cog"
+        await _type(pilot, app, "#fix-remarks", "")
+        await pilot.press("enter")
+        await _settle(pilot, app)
+        assert session.fixes() == []
         assert "9 in use" in str(app.query_one("#fix-sats-msg").render())
         await pilot.press("ctrl+s")
         await _settle(pilot, app)
@@ -72,8 +80,9 @@ async def test_log_a_fix_see_it_listed_and_correct_it(session):
         table = app.query_one("#fix-table")
         assert table.row_count == 1
         assert "Fixes 1–1 of 1, oldest first" in _head(app)
-        # correct it: Enter on the row opens the dialog
-        table.focus()
+        # correct it: Ctrl+L goes from the form to the list, Enter on the row opens the dialog
+        await pilot.press("ctrl+l")
+        assert app.focused is table
         await pilot.press("enter")
         await pilot.pause()
         from passagelog.tui.correction_dialog import CorrectionDialog
@@ -210,7 +219,7 @@ async def test_the_fix_list_pages_through_the_whole_voyage(session, monkeypatch)
         assert isinstance(app.screen, GoToTimeDialog)
         app.screen.query_one("#goto-time").value = "2026-05-01T12:00:30"  # no zone: UTC
         await pilot.pause()
-        assert "01 12:00Z" in str(app.screen.query_one("#goto-msg").render())
+        assert "2026-05-01 12:00Z" in str(app.screen.query_one("#goto-msg").render())
         await pilot.press("enter")
         await _settle(pilot, app)
         # 12:00:30 falls between the fixes of 12:00 and 12:02
@@ -335,5 +344,38 @@ def test_goto_times_and_the_header():
         "Fixes 999,801–1,000,000 of 1,000,000, oldest first · PgUp PgDn Home End")
     span = (datetime(2026, 5, 1, 23, tzinfo=timezone.utc), ref)
     assert page_head(1, 10, 20, span) == (
-        "Fixes 1–10 of 20, oldest first · 2026-05-01 to 2026-05-02 UTC · PgUp PgDn Home End")
+        "Fixes 1–10 of 20, oldest first · PgUp PgDn Home End · 2026-05-01 to 2026-05-02 UTC")
     assert page_head(1, 10, 20, span, width=40) == "Fixes 1–10 of 20, oldest first"
+    assert page_head(1, 10, 20, span, width=60) == (
+        "Fixes 1–10 of 20, oldest first · PgUp PgDn Home End")
+
+
+def test_fix_times_of_day_are_the_latest_such_time():
+    now = datetime(2026, 5, 2, 0, 5, tzinfo=timezone.utc)
+    utc = timezone.utc
+    # a time of day in UTC: today's, unless more than an hour ahead of now (then yesterday's)
+    assert parse_fix_time("00:30Z", 60, now) == datetime(2026, 5, 2, 0, 30, tzinfo=utc)
+    assert parse_fix_time("23:50Z", 60, now) == datetime(2026, 5, 1, 23, 50, tzinfo=utc)
+    # no zone: ship's time at ZD +1 (ZT + ZD = UTC); the ship's date is still 1 May
+    assert parse_fix_time("2330", 60, now) == datetime(2026, 5, 2, 0, 30, tzinfo=utc)
+    assert parse_fix_time("14:30", 60, now) == datetime(2026, 5, 1, 15, 30, tzinfo=utc)
+    assert parse_fix_time("2026-05-01T10:00Z", 60, now) == datetime(2026, 5, 1, 10, 0,
+                                                                    tzinfo=utc)
+    for bad in ("24:00", "12:60", "noon"):
+        with pytest.raises(InputError):
+            parse_fix_time(bad, 60, now)
+
+
+async def test_a_suspect_fix_is_marked(session):
+    # two fixes 60 NM apart in 10 minutes (1° of latitude is about 60 NM, from memory):
+    # 360 kn, far above the craft's 20 kn
+    session.add_fix(Fix(T0, 49.0, -6.0))
+    session.add_fix(Fix(T0 + timedelta(minutes=10), 50.0, -6.0, remarks="typed wrong"))
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        log = await _open_log(pilot, app)
+        table = app.query_one("#fix-table")
+        assert [f.suspect for f in log.shown] == [False, True]
+        cells = table.get_row_at(1)
+        assert "SUSPECT 360 kn" in " ".join(str(c) for c in cells)
+        assert cells[0].style == "bold"
