@@ -1,18 +1,20 @@
 """The Log view: enter a fix, page through the fix list, correct a fix, keep log entries.
 
-Each field of the fix form is checked as you type, with the reason beside it; Ctrl+S logs
-the fix (or, on the Entries tab, adds the entry) when every field is good. The time defaults
-to now (UTC); ship's time is accepted with its zone (``2026-05-02T11:50 ZD+1``). In the fix
-list suspects (implausible speed from the previous fix) and corrections are marked, and a
-corrected original stays, struck through. Enter on a fix opens the correction dialog.
+Each field of the fix form is checked as you type, with the reason beside it; Enter goes on
+to the next field and Ctrl+S logs the fix (or, on the Entries tab, adds the entry) when
+every field is good. The time defaults to now; a time of day alone is the latest such time
+(``14:30Z`` in UTC, ``15:30`` ship's time in the zone now in force), and a full time may
+carry its zone (``2026-05-02T11:50 ZD+1``). In the fix list suspects (implausible speed
+from the previous fix) and corrections are marked, and a corrected original stays, struck
+through. Ctrl+L moves between the form and the list; Enter on a fix opens the correction
+dialog.
 
 The fix list covers the whole voyage, every record in time order (the latest at the
 bottom), but holds only the rows on show plus a margin each side (:func:`window_rows`):
 PageUp/PageDown, the arrows, Home/End and Ctrl+G (go to a time in UTC) read the next rows
 with keyset queries, so a list of a million fixes opens as fast as one of ten. The header
-above it says which records are on show ("fixes 981–1,000 of 1,000").
+above it says which records are on show ("Fixes 981–1,000 of 1,000, oldest first").
 """
-
 from __future__ import annotations
 
 import re
