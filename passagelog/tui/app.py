@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import os
 from datetime import datetime
 from pathlib import Path
 from typing import Callable, Iterable
@@ -48,6 +49,11 @@ class PassagelogApp(App):
                                                                     clock=clock)
         self.watch_poll_s = watch_poll_s
         self.theme = "textual-dark"
+        if "TEXTUAL_ANIMATIONS" not in os.environ:
+            # A calm screen: no sliding tab underline or smooth scrolling, which redraw the
+            # screen many times a second for nothing a watch officer needs (and cost most
+            # over a slow link to the ship). TEXTUAL_ANIMATIONS=full brings them back.
+            self.animation_level = "none"
 
     def compose(self) -> ComposeResult:
         from passagelog.tui.plan_view import PlanView

@@ -9,7 +9,7 @@ The clock is injectable so that tests and snapshots see a fixed "now".
 from __future__ import annotations
 
 import threading
-from datetime import datetime, timezone
+from datetime import datetime, timedelta, timezone
 from pathlib import Path
 from typing import Callable
 
@@ -142,6 +142,37 @@ class Session:
 
     def latest_fix(self) -> Fix | None:
         return self.logbook.latest_fix(self._vid()) if self.voyage else None
+
+    # --- the recent part of the track (the Watch view; the cost follows the span read,
+    # not the size of the voyage) ---
+    def recent_fixes(self, span_s: float) -> list[Fix]:
+        """The current fixes of the last ``span_s`` seconds of the track, up to and with
+        the latest fix, in time order (originals a correction superseded left out)."""
+        latest = self.latest_fix()
+        if latest is None:
+            return []
+        book = self.logbook
+        records = book.fix_records_from(self._vid(),
+                                        latest.time_utc - timedelta(seconds=span_s),
+                                        limit=2**62)
+        gone = book.corrections_of([f.fix_id for f in records])
+        return [f for f in records if f.fix_id not in gone]
+
+    def first_fix_time(self) -> datetime | None:
+        """When the voyage's first current fix was taken (None without fixes)."""
+        if self.voyage is None:
+            return None
+        book = self.logbook
+        after = None
+        while True:
+            page = book.fix_records_after(self._vid(), after, limit=64)
+            if not page:
+                return None
+            gone = book.corrections_of([f.fix_id for f in page])
+            for f in page:
+                if f.fix_id not in gone:
+                    return f.time_utc
+            after = page[-1].fix_id
 
     def change_counter(self) -> tuple:
         """Something that changes whenever the logbook does (cheap: polled by Watch):

@@ -34,7 +34,14 @@ class WatchSettings:
     behind_s: float = DEFAULT_BEHIND_S         # behind the plan's schedule by more than this
     window_s: float = 3 * 3600.0               # SMG window of the ETA by recent progress
     exact_max_fixes: int = 100_000             # above this, reconcile only the last tail_s
-    tail_s: float = 6 * 3600.0                 # twice the SMG window
+    tail_s: float = 3.5 * 3600.0               # the SMG window and half an hour
+
+
+    @property
+    def tail_span_s(self) -> float:
+        """The span of recent fixes a long voyage's watch reconciles: ``tail_s``, and never
+        less than the SMG window and a minute (the window's figures need all of it)."""
+        return max(self.tail_s, self.window_s + 60.0)
 
 
 @dataclass(frozen=True)
@@ -53,50 +60,101 @@ class WatchState:
     last_passage: object | None = None
     xtl_port_m: float | None = None
     xtl_stbd_m: float | None = None
+    zd_minutes: int = 0              # ship's zone at the latest fix (clock changes counted)
     note: str = ""
     extra: dict = field(default_factory=dict)
+
+
+NO_PLAN = "This voyage has no plan yet: make one in Plan (F2)."
+NO_FIXES = ("No fixes yet: log one in Log (F3), or start 'passagelog feed' to log them "
+            "from the GNSS.")
+
+
+def read_watch(session, settings: WatchSettings = WatchSettings()) -> WatchState:
+    """The watch of the session's voyage, read from its logbook.
+
+    A long voyage (more than ``settings.exact_max_fixes`` fix records, and no plan revision
+    in force from within the last ``tail_s``) reads only the fixes of the last ``tail_s``
+    (see :func:`compute_watch`), so the watch costs the same on a voyage of a million fixes
+    as on one of ten thousand; a shorter one reads all its fixes."""
+    session.reload_route()
+    route = session.route
+    if route is None:
+        return WatchState(None, note=NO_PLAN)
+    voyage = session.voyage
+    revisions = [(t, r) for t, r in session.plan_revisions] or None
+    entries = session.entries()
+    common = dict(zd_minutes=session.zd_minutes, entries=entries, settings=settings,
+                  plan_revisions=revisions, planned_departure_utc=voyage.departure_utc)
+    total = session.fix_record_count()
+    if total > settings.exact_max_fixes:
+        tail = session.recent_fixes(settings.tail_span_s)
+        if tail:
+            tail_start = tail[-1].time_utc.timestamp() - settings.tail_span_s
+            if not any(t is not None and _secs(t) > tail_start
+                       for t, _r in (revisions or ())):
+                first = session.first_fix_time()
+                return compute_watch(route, tail, fixes_total=total,
+                                     first_fix_s=None if first is None else first.timestamp(),
+                                     **common)
+    return compute_watch(route, session.fix_arrays(), **common)
 
 
 def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
                   settings: WatchSettings = WatchSettings(), plan_revisions=None,
                   departure_utc: datetime | None = None,
-                  planned_departure_utc: datetime | None = None) -> WatchState:
-    """Reconcile the recent fixes (``fixes``: FixArrays or Fix objects) with ``route``."""
+                  planned_departure_utc: datetime | None = None,
+                  fixes_total: int | None = None,
+                  first_fix_s: float | None = None) -> WatchState:
+    """Reconcile the recent fixes (``fixes``: FixArrays or Fix objects) with ``route``.
+
+    ``fixes`` is normally the whole track. With ``fixes_total`` (the number of fixes of the
+    whole voyage, more than ``fixes`` holds) it is only the recent part of it, at least the
+    last ``settings.tail_s``; ``first_fix_s`` is then the time of the voyage's first fix
+    (the actual departure where no departure entry says otherwise)."""
     from passagelog.review.engine import reconcile
-    from passagelog.review.inputs import as_fix_arrays
+    from passagelog.review.inputs import as_fix_arrays, clocks_from
     from passagelog.review.status import status_of
 
     if route is None:
-        return WatchState(None, note="This voyage has no plan yet: make one in Plan (F2).")
-    arrays = as_fix_arrays(fixes)
-    total = len(arrays)
-    if total == 0:
-        return WatchState(None, note="No fixes yet: log one in Log (F3), or start "
-                                     "'passagelog feed' to log them from the GNSS.")
+        return WatchState(None, note=NO_PLAN)
+    arrays = _review_arrays(fixes, as_fix_arrays)
+    held = len(arrays)
+    total = held if fixes_total is None else max(int(fixes_total), held)
+    if held == 0:
+        return WatchState(None, note=NO_FIXES)
     t = arrays.time_s
     last_s = float(np.nanmax(t))
     revisions = list(plan_revisions) if plan_revisions else [(None, route)]
-    tail_start = last_s - settings.tail_s
+    tail_start = last_s - settings.tail_span_s
     in_force = [r for r in revisions if r[0] is None or _secs(r[0]) <= tail_start]
     later = [r for r in revisions if r[0] is not None and _secs(r[0]) > tail_start]
     k0 = 0
-    if total > settings.exact_max_fixes and not later:
+    partial = total > held
+    if partial and later:
+        raise ValueError("a plan revision is in force from within the recent fixes: the "
+                         "watch needs the whole track")
+    if (partial or total > settings.exact_max_fixes) and not later:
         # A long voyage: reconcile only the last ``tail_s`` of fixes, against the plan from
         # the leg the first of them is on (the engine then finds the passages from there).
         # Exact for any track that does not come back over an earlier leg of the plan.
         sel = np.flatnonzero(t >= tail_start)
-        tail = arrays.take(sel)
+        tail = arrays if sel.size == held else arrays.take(sel)
         plan = in_force[-1][1]
         k0 = _leg_at(plan, float(tail.lat[0]), float(tail.lon[0]))
-        schedule = _scheduled_times(plan, planned_departure_utc.timestamp()
-                                    if planned_departure_utc is not None
-                                    else _departure_s(arrays, entries))
+        if planned_departure_utc is not None:
+            dep_s = planned_departure_utc.timestamp()
+        else:
+            first_s = first_fix_s if partial and first_fix_s is not None else float(t[0])
+            dep_s = _departure_s(entries, first_s)
+        schedule = _scheduled_times(plan, dep_s)
         sub = plan.with_changes(waypoints=plan.waypoints[k0:], legs=plan.legs[k0:],
                                 schedule=())
         review = reconcile(sub, tail, zd_minutes=zd_minutes, entries=entries,
                            window_s=settings.window_s,
                            schedule=None if schedule is None else schedule[k0:],
-                           departure_utc=float(tail.time_s[0]))
+                           departure_utc=float(tail.time_s[0]),
+                           detail_from_utc=last_s - settings.window_s - 60.0)
     else:
         # The whole track decides the active leg (waypoint passages); the per-fix figures
         # are worked out only over the last SMG window, which keeps it quick.
@@ -122,9 +180,10 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
 
             passage = replace(p, waypoint=p.waypoint + shift) if shift else p
             break
+    zd_now = clocks_from(zd_minutes, entries).zd_at(status.time_s)
     return WatchState(status, fixes_used=len(review.fixes), fixes_total=total,
                       last_passage=passage, xtl_port_m=leg.xtl_port_m,
-                      xtl_stbd_m=leg.xtl_stbd_m,
+                      xtl_stbd_m=leg.xtl_stbd_m, zd_minutes=zd_now,
                       extra={"arrival_radius_m":
                              rroute.waypoints[status.leg - shift].arrival_radius_m,
                              "sailing": leg.sailing, "tail_from_leg": k0 + 1 if k0 else None})
@@ -134,29 +193,77 @@ def _secs(t) -> float:
     return t.timestamp() if isinstance(t, datetime) else float(t)
 
 
+def _review_arrays(fixes, as_fix_arrays):
+    """The engine's columns of ``fixes``; a logbook's arrays are taken as they are."""
+    from passagelog.review.inputs import FixArrays
+
+    if isinstance(fixes, FixArrays) or isinstance(fixes, (list, tuple)):
+        return as_fix_arrays(fixes)
+    names = ("time_s", "lat", "lon", "heading", "stw_kn", "sog_kn", "cog", "suspect", "fix_id")
+    if all(hasattr(fixes, n) for n in names):
+        return FixArrays(*(np.asarray(getattr(fixes, n)) for n in names))
+    return as_fix_arrays(fixes)
+
+
+def _leg_lengths(route) -> np.ndarray:
+    """Length of each leg of ``route`` in metres by its sailing (batch geodesic and rhumb
+    inverse problems: the lengths :func:`passagelog.nav.legs.make_leg` gives)."""
+    from passagelog.nav.geodesic import inverse_np
+    from passagelog.nav.rhumb import rhumb_inverse_np
+
+    wps = route.waypoints
+    lat = np.array([w.lat for w in wps])
+    lon = np.array([w.lon for w in wps])
+    gc = np.array([p.sailing == "great-circle" for p in route.legs], dtype=bool)
+    out = np.empty(len(route.legs))
+    for mask, solve in ((gc, inverse_np), (~gc, rhumb_inverse_np)):
+        if mask.any():
+            idx = np.flatnonzero(mask)
+            out[idx] = solve(lat[idx], lon[idx], lat[idx + 1], lon[idx + 1])[0]
+    return out
+
+
 def _leg_at(route, lat: float, lon: float) -> int:
     """Index of the leg a position is on: the leg whose line passes nearest to it among
-    those it is alongside (along-track within the leg), else the leg ending at the nearest
-    waypoint. Offsets from :mod:`passagelog.nav.legs`."""
-    from passagelog.nav.geodesic import inverse
+    those it is alongside (along-track within the leg, 1 NM either side), else the leg
+    ending at the nearest waypoint. Offsets from :mod:`passagelog.nav.legs`.
+
+    Only the legs that could be nearest are solved: for a leg AB of length L and a position
+    P alongside it, whose foot F is at most 1 NM past an end, the triangle inequality gives
+    |PA| + |PB| <= 2 |PF| + L + 2 NM, so |XTE| = |PF| is at least (|PA| + |PB| - L)/2 - 1 NM;
+    legs are tried from the smallest such bound and the search stops when the bound passes
+    the best |XTE| found."""
+    from passagelog.errors import GeometryError
+    from passagelog.nav.geodesic import inverse_np
     from passagelog.nav.legs import make_leg
 
+    wps = route.waypoints
+    d = inverse_np(lat, lon, np.array([w.lat for w in wps]), np.array([w.lon for w in wps]))[0]
+    lengths = _leg_lengths(route)
+    bound = (d[:-1] + d[1:] - lengths) / 2.0 - NM_M - (1.0 + 1e-9 * lengths)
     best, best_xte = None, math.inf
-    for k, plan in enumerate(route.legs):
-        a, b = route.waypoints[k], route.waypoints[k + 1]
+    for k in np.argsort(bound, kind="stable"):
+        k = int(k)
+        if bound[k] > best_xte:
+            break
+        plan = route.legs[k]
+        a, b = wps[k], wps[k + 1]
         leg = make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing)
-        xte, along = leg.offset(lat, lon)
-        if -NM_M <= along <= leg.distance_m + NM_M and abs(xte) < best_xte:
+        try:
+            xte, along = leg.offset(lat, lon)
+        except GeometryError:  # no foot on this leg's line from so far off: not alongside
+            continue
+        if -NM_M <= along <= leg.distance_m + NM_M and (
+                abs(xte) < best_xte or (abs(xte) == best_xte and k < best)):
             best, best_xte = k, abs(xte)
     if best is not None:
         return best
-    dists = [inverse(lat, lon, w.lat, w.lon)[0] for w in route.waypoints[1:]]
-    return int(np.argmin(dists))
+    return int(np.argmin(d[1:]))
 
 
-def _departure_s(arrays, entries) -> float:
+def _departure_s(entries, first_fix_s: float) -> float:
     times = [e.time_utc.timestamp() for e in entries if e.kind == "departure"]
-    return min(times) if times else float(arrays.time_s[0])
+    return min(times) if times else first_fix_s
 
 
 def _scheduled_times(route, departure_s: float) -> list | None:
@@ -169,17 +276,14 @@ def _scheduled_times(route, departure_s: float) -> list | None:
                 item.eta_utc or item.etd_utc)
             out[item.waypoint_index] = t
         return out
-    from passagelog.nav.legs import make_leg
     from passagelog.nav.units import travel_seconds
 
+    if not all(plan.speed_kn for plan in route.legs):
+        return None
     t = departure_s
     out = [datetime.fromtimestamp(t, timezone.utc)]
-    for k, plan in enumerate(route.legs):
-        if not plan.speed_kn:
-            return None
-        a, b = route.waypoints[k], route.waypoints[k + 1]
-        t += travel_seconds(make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing).distance_m,
-                            plan.speed_kn)
+    for plan, length in zip(route.legs, _leg_lengths(route)):
+        t += travel_seconds(float(length), plan.speed_kn)
         out.append(datetime.fromtimestamp(t, timezone.utc))
     return out
 

@@ -21,7 +21,7 @@ from textual.widgets import Static
 from passagelog.errors import PassagelogError
 from passagelog.nav.units import NM_M
 from passagelog.tui import text as fmt
-from passagelog.tui.watch_state import WatchSettings, WatchState, alerts_for, compute_watch
+from passagelog.tui.watch_state import WatchSettings, WatchState, alerts_for, read_watch
 from passagelog.tui.xte_bar import XteBar
 
 
@@ -81,12 +81,7 @@ class WatchView(Vertical, can_focus=True):
             self.app.call_from_thread(self._show, WatchState(None, note=NO_VOYAGE))
             return
         try:
-            s.reload_route() if hasattr(s, "reload_route") else None
-            revisions = [(t, r) for t, r in getattr(s, "plan_revisions", [])] or None
-            state = compute_watch(s.route, s.fix_arrays(), zd_minutes=s.zd_minutes,
-                                  entries=s.entries(), settings=self.settings,
-                                  plan_revisions=revisions,
-                                  planned_departure_utc=s.voyage.departure_utc)
+            state = read_watch(s, self.settings)
         except Exception as exc:  # noqa: BLE001 - shown in the view; the watch goes on
             state = WatchState(None, note=f"Cannot reconcile the latest fixes: {exc}")
         self.app.call_from_thread(self._show, state)
@@ -110,7 +105,7 @@ class WatchView(Vertical, can_focus=True):
             self._draw_alerts()
             return
         st = state.status
-        zd = self.session.zd_minutes
+        zd = state.zd_minutes
         t = _t(st.time_s)
         head.update(
             f"Latest fix {fmt.utc_time(t)}  ship {fmt.ship_time(t, zd)}  "

@@ -128,3 +128,124 @@ def test_the_quick_tail_watch_equals_the_whole_track_watch(sample_plan):
             assert q[key] == pytest.approx(e[key], rel=1e-9, abs=1e-6), key
         else:
             assert q[key] == e[key], key
+
+
+def _weave_track(route, t0, minutes=10, legs=2, amplitude_nm=0.6):
+    """12 kn along the first ``legs`` legs with a slow weave, a fix every ``minutes``."""
+    import math
+
+    fixes, along, k, t = [], 0.0, 1, t0
+    step = 12.0 * NM * minutes / 60.0
+    while k <= legs:
+        a, b = route.waypoints[k - 1], route.waypoints[k]
+        length = make_leg(a.lat, a.lon, b.lat, b.lon, "great-circle").distance_m
+        if along > length:
+            along -= length
+            k += 1
+            continue
+        lat, lon = point_off_leg(route, k, along, amplitude_nm * NM * math.sin(len(fixes) / 9.0))
+        fixes.append(Fix(t, lat, lon, sog_kn=12.0))
+        along += step
+        t += timedelta(minutes=minutes)
+    return fixes
+
+
+def test_a_long_voyage_reads_only_its_recent_fixes(session, monkeypatch):
+    """Above ``exact_max_fixes`` fix records the watch reads only the last hours from the
+    logbook (never the whole voyage) and still gives the figures of the engine over the
+    whole track; an original that a correction superseded is left out."""
+    from dataclasses import asdict
+
+    from passagelog.tui.watch_state import WatchSettings, compute_watch, read_watch
+
+    route = session.route
+    t0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
+    track = _weave_track(route, t0)
+    session.logbook.add_fixes(session.voyage.voyage_id, track)
+    # the fix an hour before the last is corrected 0.4 NM to starboard
+    stored = session.fixes()
+    old = stored[-7]
+    lat, lon, _ = direct(old.lat, old.lon, 90.0, 0.4 * NM)
+    session.correct_fix(old.fix_id, Fix(old.time_utc, lat, lon, sog_kn=12.0), "typo")
+    current = session.fixes()
+    exact = compute_watch(route, current, zd_minutes=session.zd_minutes,
+                          settings=WatchSettings(exact_max_fixes=10**9),
+                          planned_departure_utc=session.voyage.departure_utc)
+
+    def whole_voyage(*_a, **_k):
+        raise AssertionError("the whole voyage was read")
+
+    monkeypatch.setattr(type(session), "fix_arrays", whole_voyage)
+    monkeypatch.setattr(type(session), "fixes", whole_voyage)
+    quick = read_watch(session, WatchSettings(exact_max_fixes=10))
+    assert quick.extra["tail_from_leg"] == 2  # the quick path, from leg 2
+    assert quick.fixes_used < len(current) and quick.fixes_total == len(current) + 1
+    e, q = asdict(exact.status), asdict(quick.status)
+    for key in e:
+        if isinstance(e[key], float):
+            assert q[key] == pytest.approx(e[key], rel=1e-9, abs=1e-6), key
+        else:
+            assert q[key] == e[key], key
+
+
+def test_the_leg_search_finds_what_trying_every_leg_finds():
+    """_leg_at solves only the legs that can be nearest (a triangle-inequality bound);
+    it must pick the leg that trying every leg picks, on great-circle and rhumb legs,
+    for positions alongside, past the ends and far off."""
+    import math
+    import random
+
+    from passagelog.model import LegPlan, Route, Waypoint
+    from passagelog.tui.watch_state import _leg_at
+
+    wps = (Waypoint("A", 50.0, -5.0), Waypoint("B", 48.0, -9.0), Waypoint("C", 47.0, -15.0),
+           Waypoint("D", 44.0, -16.0), Waypoint("E", 44.5, -22.0), Waypoint("F", 43.0, -23.0))
+    sailings = ("rhumb", "great-circle", "rhumb", "great-circle", "rhumb")
+    route = Route("zigzag", wps, tuple(LegPlan(s, 10.0) for s in sailings))
+
+    def every_leg(lat, lon):
+        best, best_xte = None, math.inf
+        for k, plan in enumerate(route.legs):
+            a, b = wps[k], wps[k + 1]
+            leg = make_leg(a.lat, a.lon, b.lat, b.lon, plan.sailing)
+            xte, along = leg.offset(lat, lon)
+            if -NM <= along <= leg.distance_m + NM and abs(xte) < best_xte:
+                best, best_xte = k, abs(xte)
+        if best is not None:
+            return best
+        from passagelog.nav.geodesic import inverse
+
+        dists = [inverse(lat, lon, w.lat, w.lon)[0] for w in wps[1:]]
+        return dists.index(min(dists))
+
+    rng = random.Random(6)
+    for _ in range(150):
+        lat, lon = rng.uniform(42.0, 51.0), rng.uniform(-24.0, -4.0)
+        assert _leg_at(route, lat, lon) == every_leg(lat, lon), (lat, lon)
+    for w in wps[1:-1]:  # at the turns, where two legs meet
+        assert _leg_at(route, w.lat, w.lon) == every_leg(w.lat, w.lon)
+
+
+async def test_ship_time_follows_the_clock_changes(session):
+    """The Watch shows ship's time in the zone in force at the fix: the voyage's ZD (-1
+    here, +60 min) changed by clock-change log entries (ZT = UTC - ZD)."""
+    from passagelog.model import LogEntry
+    from passagelog.tui.app import PassagelogApp
+
+    route = session.route
+    t0 = datetime(2026, 5, 2, 11, 0, tzinfo=timezone.utc)
+    add_track(session, route, [(t0 - timedelta(hours=1), 2, 94 * NM, 0.0),
+                               (t0, 2, 106 * NM, 0.0)])
+    session.add_entry(LogEntry(t0 - timedelta(hours=3), "clock-change", "retarded",
+                               zd_minutes=120))
+    app = PassagelogApp(session=session, watch_poll_s=0.1)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f4")
+        watch = app.query_one("#watch-view")
+        for _ in range(50):
+            await pilot.pause(0.05)
+            if watch.state is not None and watch.state.status is not None:
+                break
+        assert watch.state.zd_minutes == 120
+        head = str(app.query_one("#watch-head").render())
+        assert "02 11:00Z" in head and "ship 02 09:00 (+2)" in head  # 11:00 UTC - 2 h
