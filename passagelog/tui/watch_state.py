@@ -298,7 +298,7 @@ def alerts_for(state: WatchState, now_s: float,
     out: list[Alert] = []
     age = now_s - s.time_s
     if age > settings.no_fix_s:
-        out.append(Alert("no-fix", f"NO FIX for {_hm(age)} (limit {_hm(settings.no_fix_s)})",
+        out.append(Alert("no-fix", f"NO FIX for {span_text(age)} (limit {span_text(settings.no_fix_s)})",
                          "warning"))
     if s.phase == "arrived":
         out.append(Alert("arrived", f"Arrived at {s.destination}.", "information"))
@@ -316,7 +316,7 @@ def alerts_for(state: WatchState, now_s: float,
     radius = state.extra.get("arrival_radius_m") or 0.0
     if s.dtw_m <= max(settings.approach_m, radius) or (ttw is not None
                                                        and ttw <= settings.approach_s):
-        eta = f", about {_hm(ttw)} to go" if ttw is not None else ""
+        eta = f", about {span_text(ttw)} to go" if ttw is not None else ""
         out.append(Alert("approaching", f"Approaching WP{s.leg + 1} {s.to_wp}: "
                                         f"{s.dtw_m / NM_M:.2f} NM{eta}", "information"))
     p = state.last_passage
@@ -329,14 +329,18 @@ def alerts_for(state: WatchState, now_s: float,
         out.append(Alert("passed", f"Passed WP{p.waypoint} {p.name} at {when} ({how}){skipped}",
                          "warning" if p.skipped else "information"))
     if s.delay_s is not None and s.delay_s > settings.behind_s:
-        out.append(Alert("behind", f"BEHIND SCHEDULE by {_hm(s.delay_s)}", "warning"))
+        out.append(Alert("behind", f"BEHIND SCHEDULE by {span_text(s.delay_s)}", "warning"))
     return tuple(out)
 
 
-def _hm(seconds: float) -> str:
-    minutes = int(round(seconds / 60.0))
-    d, minutes = divmod(minutes, 1440)
-    h, m = divmod(minutes, 60)
-    if d:
-        return f"{d}d {h}h{m:02d}"
-    return f"{h}h{m:02d}" if h else f"{m} min"
+def span_text(seconds: float) -> str:
+    """A length of time as people say it: ``45 min``, ``7 h 30 min``, ``3 d 04 h``."""
+    s = int(round(abs(seconds)))
+    days, rem = divmod(s, 86400)
+    h, rem = divmod(rem, 3600)
+    if days >= 2:
+        return f"{days} d {h:02d} h"
+    h += 24 * days
+    return f"{h} h {rem // 60:02d} min" if h else f"{rem // 60} min"
+
+

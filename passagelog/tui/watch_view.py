@@ -21,7 +21,8 @@ from textual.widgets import Static
 from passagelog.errors import PassagelogError
 from passagelog.nav.units import NM_M
 from passagelog.tui import text as fmt
-from passagelog.tui.watch_state import WatchSettings, WatchState, alerts_for, read_watch
+from passagelog.tui.watch_state import (WatchSettings, WatchState, alerts_for, read_watch,
+                                         span_text)
 from passagelog.tui.xte_bar import XteBar
 
 
@@ -33,9 +34,88 @@ def _t(ts: float | None) -> datetime | None:
     return None if ts is None else datetime.fromtimestamp(ts, timezone.utc)
 
 
+def fix_age(fix_s: float, now_s: float) -> str:
+    """How old the fix is by this computer's clock (or how far ahead of it it is dated)."""
+    if fix_s > now_s + 60.0:
+        return f"dated {span_text(fix_s - now_s)} ahead of this computer's clock"
+    return f"taken {span_text(max(0.0, now_s - fix_s))} ago"
+
+
+def xte_text(st) -> Text:
+    """``XTE 0.30 NM R (starboard), inside the 2.00 NM limit``."""
+    xte_nm = abs(st.xte_m) / NM_M
+    if round(xte_nm, 2) == 0.0:
+        where = "0.00 NM, on the track"
+    else:
+        where = f"{xte_nm:.2f} NM " + {"R": "R (starboard)", "L": "L (port)"}[st.side]
+    out = Text.assemble("XTE ", (where, "bold"))
+    if st.xtl_m is None:
+        out.append(", no limit set on this side", style="dim")
+    elif st.inside_xtl:
+        out.append(f", inside the {st.xtl_m / NM_M:.2f} NM limit", style="dim")
+    else:
+        out.append(f"  OUTSIDE the {st.xtl_m / NM_M:.2f} NM limit", style="bold reverse")
+    return out
+
+
+def _ahead_behind(delay_s: float | None) -> str:
+    if delay_s is None:
+        return fmt.DASH
+    if abs(delay_s) < 30.0:
+        return "on the plan's time"
+    word = "behind" if delay_s > 0 else "ahead"
+    return f"{span_text(delay_s)} {word}"
+
+
+def figures_grid(state: WatchState) -> Table:
+    """Progress, ETAs, made good, set and drift, schedule: two label/value pairs a row."""
+    st = state.status
+    grid = Table.grid(padding=(0, 2))
+    grid.add_column(style="dim")
+    grid.add_column()
+    grid.add_column(style="dim")
+    grid.add_column()
+    grid.add_row("Along leg", f"{st.along_m / NM_M:.1f} NM", "Leg to go",
+                 f"{st.leg_to_go_m / NM_M:.1f} NM")
+    grid.add_row(f"DTW {st.to_wp}", f"{st.dtw_m / NM_M:.1f} NM", "BTW", fmt.course(st.btw))
+    passage = state.last_passage
+    if st.phase == "arrived":
+        when = (fmt.utc_time(_t(passage.time_s)) if passage is not None
+                and passage.waypoint == st.legs + 1 else fmt.DASH)
+        grid.add_row(f"Arrived {st.destination}", when, "Schedule",
+                     _ahead_behind(None if passage is None else passage.delay_s))
+    else:
+        ttg = None
+        if st.smg_window_kn:
+            ttg = st.dtw_m / (st.smg_window_kn * NM_M / 3600.0)
+        grid.add_row("TTG (SMG)", fmt.duration(ttg), "Route to go",
+                     f"{st.route_to_go_m / NM_M:.1f} NM")
+        # by plan: from now at the legs' planned speeds; by progress: at the SMG
+        grid.add_row(f"ETA {st.to_wp}", f"{fmt.utc_time(_t(st.eta_wp_plan_s))} at plan speed",
+                     "by progress", fmt.utc_time(_t(st.eta_wp_smg_s)))
+        if st.to_wp != st.destination or st.leg != st.legs:
+            grid.add_row(f"ETA {st.destination}",
+                         f"{fmt.utc_time(_t(st.eta_dest_plan_s))} at plan speed",
+                         "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
+    window_h = f"{st.window_s / 3600:g} h"
+    smg = fmt.DASH if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
+    grid.add_row(f"SMG/CMG {window_h}", f"{smg} {fmt.course(st.cmg_window)}",
+                 "Set/drift", fmt.DASH if st.drift_kn is None else
+                 f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")
+    if st.phase == "arrived":
+        grid.add_row("Fixes used", f"{state.fixes_used:,} of {state.fixes_total:,}", "", "")
+    else:
+        grid.add_row("Schedule", _ahead_behind(st.delay_s), "Fixes used",
+                     f"{state.fixes_used:,} of {state.fixes_total:,}")
+    return grid
+
+
 class WatchView(Vertical, can_focus=True):
     """Latest fix, active leg, XTE bar, progress and ETAs, alerts."""
 
+    DEFAULT_CSS = """
+    #watch-xte { height: auto; }
+    """
     BINDINGS = [Binding("ctrl+l", "refresh_now", "Refresh")]
     PALETTE = (("Watch: refresh now", "refresh_now", "Reconcile the latest fixes now"),)
 
@@ -50,6 +130,7 @@ class WatchView(Vertical, can_focus=True):
     def compose(self) -> ComposeResult:
         yield Static("Reading the logbook…", id="watch-head", classes="view-head")
         yield Static("", id="watch-leg")
+        yield Static("", id="watch-xte")
         yield XteBar(id="watch-bar")
         yield Static("", id="watch-figures")
         yield Static("", id="watch-alerts")
@@ -95,11 +176,13 @@ class WatchView(Vertical, can_focus=True):
         state = self.state
         head = self.query_one("#watch-head", Static)
         leg_line = self.query_one("#watch-leg", Static)
+        xte_line = self.query_one("#watch-xte", Static)
         figures = self.query_one("#watch-figures", Static)
         bar = self.query_one("#watch-bar", XteBar)
         if state is None or state.status is None:
             head.update(state.note if state else "Reading the logbook…")
             leg_line.update("")
+            xte_line.update("")
             figures.update("")
             bar.display = False
             self._draw_alerts()
@@ -107,53 +190,21 @@ class WatchView(Vertical, can_focus=True):
         st = state.status
         zd = state.zd_minutes
         t = _t(st.time_s)
-        head.update(
-            f"Latest fix {fmt.utc_time(t)}  ship {fmt.ship_time(t, zd)}  "
-            f"{fmt.position(st.lat, st.lon)}"
-            + ("  [b]SUSPECT[/b]" if st.suspect else "")
-        )
-        sailing = state.extra.get("sailing")
-        sail = {"great-circle": " great circle", "rhumb": " rhumb line"}.get(sailing, "")
-        side = {"R": "R (starboard)", "L": "L (port)", "": "on the line"}[st.side]
-        leg_line.update(Text.assemble(
-            ("Leg ", ""), (f"{st.leg}/{st.legs}", "bold"), f"  {st.from_wp} → {st.to_wp}{sail}"
-            f"   XTE ", (f"{abs(st.xte_m) / NM_M:.2f} NM {side}", "bold"),
-            ("" if st.inside_xtl else "  OUTSIDE LIMIT", "bold reverse"),
+        head.update(Text.assemble(
+            "Latest fix ", (fmt.utc_time(t), "bold"), f"  ship {fmt.ship_time(t, zd)}  ",
+            (fmt.position(st.lat, st.lon), "bold"),
+            ("  SUSPECT", "bold reverse") if st.suspect else "",
+            ("\n" + fix_age(st.time_s, self.session.now().timestamp()), "dim"),
         ))
+        sailing = state.extra.get("sailing")
+        sail = {"great-circle": "  great circle", "rhumb": "  rhumb line"}.get(sailing, "")
+        leg_line.update(Text.assemble(
+            "Leg ", (f"{st.leg}/{st.legs}", "bold"), f"  {st.from_wp} → {st.to_wp}{sail}",
+        ))
+        xte_line.update(xte_text(st))
         bar.display = True
         bar.xte_m, bar.port_m, bar.stbd_m = st.xte_m, state.xtl_port_m, state.xtl_stbd_m
-        grid = Table.grid(padding=(0, 2))
-        grid.add_column(style="dim")
-        grid.add_column()
-        grid.add_column(style="dim")
-        grid.add_column()
-        ttg = None
-        if st.smg_window_kn:
-            ttg = st.dtw_m / (st.smg_window_kn * NM_M / 3600.0)
-        window_h = f"{st.window_s / 3600:g} h"
-        grid.add_row("Along leg", f"{st.along_m / NM_M:.1f} NM", "Leg to go",
-                     f"{st.leg_to_go_m / NM_M:.1f} NM")
-        grid.add_row(f"DTW {st.to_wp}", f"{st.dtw_m / NM_M:.1f} NM", "BTW", fmt.course(st.btw))
-        grid.add_row("TTG (SMG)", fmt.duration(ttg), "Route to go",
-                     f"{st.route_to_go_m / NM_M:.1f} NM")
-        grid.add_row(f"ETA {st.to_wp}", f"plan {fmt.utc_time(_t(st.eta_wp_plan_s))}",
-                     "by progress", fmt.utc_time(_t(st.eta_wp_smg_s)))
-        if st.to_wp != st.destination or st.leg != st.legs:
-            grid.add_row(f"ETA {st.destination}",
-                         f"plan {fmt.utc_time(_t(st.eta_dest_plan_s))}",
-                         "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
-        smg = "–" if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
-        grid.add_row(f"SMG/CMG {window_h}", f"{smg} {fmt.course(st.cmg_window)}",
-                     "Set/drift", "–" if st.drift_kn is None else
-                     f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")
-        if st.delay_s is None:
-            sched = "–"
-        elif st.delay_s >= 0:
-            sched = f"{fmt.duration(st.delay_s)} behind"
-        else:
-            sched = f"{fmt.duration(-st.delay_s)} ahead"
-        grid.add_row("Schedule", sched, "Fixes", f"{state.fixes_used} of {state.fixes_total}")
-        figures.update(grid)
+        figures.update(figures_grid(state))
         self._draw_alerts()
 
     def current_alerts(self):

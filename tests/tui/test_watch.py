@@ -55,8 +55,8 @@ async def test_watch_follows_a_new_fix_and_raises_off_track(session):
         st = watch.state.status
         assert st.leg == 2 and st.to_wp == "Mid"
         assert st.xte_m == pytest.approx(0.3 * NM, abs=0.01)  # built at 0.30 NM right
-        leg_line = str(app.query_one("#watch-leg").render())
-        assert "0.30 NM R (starboard)" in leg_line
+        xte_line = str(app.query_one("#watch-xte").render())
+        assert "0.30 NM R (starboard), inside the 2.00 NM limit" in xte_line
         assert not [a for a in watch.current_alerts() if a.kind == "off-track"]
         # a fix written by another connection (as the feed does) shows on the next poll
         from passagelog.store import Logbook
@@ -249,3 +249,48 @@ async def test_ship_time_follows_the_clock_changes(session):
         assert watch.state.zd_minutes == 120
         head = str(app.query_one("#watch-head").render())
         assert "02 11:00Z" in head and "ship 02 09:00 (+2)" in head  # 11:00 UTC - 2 h
+
+
+def _render(renderable, width=100) -> str:
+    from io import StringIO
+
+    from rich.console import Console
+
+    out = StringIO()
+    Console(file=out, width=width, color_system=None).print(renderable)
+    return out.getvalue()
+
+
+def test_an_arrived_voyage_shows_its_arrival_not_etas(sample_plan):
+    """Past the destination the Watch says when the craft arrived and how that stood
+    against the plan, instead of ETAs and a time to go that no longer mean anything."""
+    from passagelog.tui.watch_state import compute_watch
+    from passagelog.tui.watch_view import figures_grid
+
+    route = sample_plan
+    a, b = route.waypoints[2], route.waypoints[3]
+    length = make_leg(a.lat, a.lon, b.lat, b.lon, "great-circle").distance_m
+    t0 = datetime(2026, 5, 5, 6, 0, tzinfo=timezone.utc)
+    fixes = []
+    for i, along in enumerate((length - 22 * NM, length - 11 * NM, length + 0.5 * NM)):
+        lat, lon = point_off_leg(route, 3, along, 0.0)
+        fixes.append(Fix(t0 + timedelta(hours=i), lat, lon, sog_kn=11.0))
+    state = compute_watch(route, fixes,
+                          planned_departure_utc=datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc))
+    assert state.status.phase == "arrived"
+    text = _render(figures_grid(state))
+    assert "Arrived Ponta" in text
+    assert state.last_passage.waypoint == 4
+    assert "ETA" not in text and "TTG" not in text
+    when = datetime.fromtimestamp(state.last_passage.time_s, timezone.utc)
+    assert when.strftime("%d %H:%MZ") in text
+
+
+def test_the_fix_age_says_when_a_fix_is_dated_ahead_of_the_clock():
+    from passagelog.tui.watch_view import fix_age
+
+    now = datetime(2026, 5, 2, 12, 0, tzinfo=timezone.utc).timestamp()
+    assert fix_age(now - 45 * 60, now) == "taken 45 min ago"
+    assert fix_age(now - 7.5 * 3600, now) == "taken 7 h 30 min ago"
+    assert fix_age(now + 3 * 86400 + 4 * 3600, now) == ("dated 3 d 04 h ahead of this "
+                                                        "computer's clock")
