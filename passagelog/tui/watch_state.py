@@ -2,9 +2,12 @@
 
 Plain logic over the reconciliation engine (:mod:`passagelog.review`), no Textual. To stay
 quick with a logbook of a million fixes, the watch reconciles only the recent part of the
-track in detail: the engine follows the whole track to find the active leg and the
-passages, and works out the per-fix figures only over the last SMG window
-(``detail_from_utc``); the Review view reconciles the whole voyage in detail.
+track in detail. A voyage of up to ``exact_max_fixes`` fixes is read whole: the engine
+follows the whole track to find the active leg and the passages, and works out the per-fix
+figures only over the last SMG window (``detail_from_utc``). A longer one reads only its
+last ``tail_s`` from the logbook (by the time index: the cost follows the span, not the
+voyage) and reconciles it against the plan from the leg its first fix is on. The Review
+view reconciles the whole voyage in detail.
 """
 
 from __future__ import annotations

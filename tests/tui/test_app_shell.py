@@ -113,3 +113,14 @@ async def test_delete_reverse_and_undo(session):
         await pilot.pause()
         await pilot.press("ctrl+down")
         assert [r.name for r in plan.rows][:2] == ["Ushant W", "Start"]
+
+
+def test_a_calm_screen_unless_animations_are_asked_for(session, monkeypatch):
+    """No sliding tab underline by default (it redraws the screen for nothing); the
+    TEXTUAL_ANIMATIONS setting, when given, is left as the user set it."""
+    from textual import constants
+
+    monkeypatch.delenv("TEXTUAL_ANIMATIONS", raising=False)
+    assert PassagelogApp(session=session).animation_level == "none"
+    monkeypatch.setenv("TEXTUAL_ANIMATIONS", "full")
+    assert PassagelogApp(session=session).animation_level == constants.TEXTUAL_ANIMATIONS
