@@ -76,8 +76,8 @@ NO_FIXES = ("No fixes yet: log one in Log (F3), or start 'passagelog feed' to lo
 def read_watch(session, settings: WatchSettings = WatchSettings()) -> WatchState:
     """The watch of the session's voyage, read from its logbook.
 
-    A long voyage (more than ``settings.exact_max_fixes`` fix records, and no plan revision
-    in force from within the last ``tail_s``) reads only the fixes of the last ``tail_s``
+    A long voyage (more than ``settings.exact_max_fixes`` fix records) reads only the fixes
+    of the last ``tail_s``
     (see :func:`compute_watch`), so the watch costs the same on a voyage of a million fixes
     as on one of ten thousand; a shorter one reads all its fixes."""
     session.reload_route()
@@ -93,13 +93,10 @@ def read_watch(session, settings: WatchSettings = WatchSettings()) -> WatchState
     if total > settings.exact_max_fixes:
         tail = session.recent_fixes(settings.tail_span_s)
         if tail:
-            tail_start = tail[-1].time_utc.timestamp() - settings.tail_span_s
-            if not any(t is not None and _secs(t) > tail_start
-                       for t, _r in (revisions or ())):
-                first = session.first_fix_time()
-                return compute_watch(route, tail, fixes_total=total,
-                                     first_fix_s=None if first is None else first.timestamp(),
-                                     **common)
+            first = session.first_fix_time()
+            return compute_watch(route, tail, fixes_total=total,
+                                 first_fix_s=None if first is None else first.timestamp(),
+                                 **common)
     return compute_watch(route, session.fix_arrays(), **common)
 
 
@@ -134,13 +131,12 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
     later = [r for r in revisions if r[0] is not None and _secs(r[0]) > tail_start]
     k0 = 0
     partial = total > held
-    if partial and later:
-        raise ValueError("a plan revision is in force from within the recent fixes: the "
-                         "watch needs the whole track")
-    if (partial or total > settings.exact_max_fixes) and not later:
-        # A long voyage: reconcile only the last ``tail_s`` of fixes, against the plan from
-        # the leg the first of them is on (the engine then finds the passages from there).
-        # Exact for any track that does not come back over an earlier leg of the plan.
+    if partial or total > settings.exact_max_fixes:
+        # A long voyage: reconcile only the last ``tail_s`` of fixes, against the plan in
+        # force at the first of them from the leg that fix is on (the engine then finds
+        # the passages from there, and enters any revision put in force since, as it does
+        # on the whole track). Exact for any track that does not come back over an earlier
+        # leg of the plan.
         sel = np.flatnonzero(t >= tail_start)
         tail = arrays if sel.size == held else arrays.take(sel)
         plan = in_force[-1][1]
@@ -153,9 +149,13 @@ def compute_watch(route, fixes, *, zd_minutes: int = 0, entries=(),
         schedule = _scheduled_times(plan, dep_s)
         sub = plan.with_changes(waypoints=plan.waypoints[k0:], legs=plan.legs[k0:],
                                 schedule=())
-        review = reconcile(sub, tail, zd_minutes=zd_minutes, entries=entries,
+        schedules = {0: None if schedule is None else schedule[k0:]}
+        for i, (_start, later_route) in enumerate(later, start=1):
+            schedules[i] = _scheduled_times(later_route, dep_s)
+        review = reconcile([(None, sub)] + later if later else sub, tail,
+                           zd_minutes=zd_minutes, entries=entries,
                            window_s=settings.window_s,
-                           schedule=None if schedule is None else schedule[k0:],
+                           schedule=schedules if later else schedules[0],
                            departure_utc=float(tail.time_s[0]),
                            detail_from_utc=last_s - settings.window_s - 60.0)
     else:

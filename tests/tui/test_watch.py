@@ -294,3 +294,48 @@ def test_the_fix_age_says_when_a_fix_is_dated_ahead_of_the_clock():
     assert fix_age(now - 7.5 * 3600, now) == "taken 7 h 30 min ago"
     assert fix_age(now + 3 * 86400 + 4 * 3600, now) == ("dated 3 d 04 h ahead of this "
                                                         "computer's clock")
+
+
+def test_a_plan_revision_in_force_within_the_recent_fixes(session, monkeypatch):
+    """A revision saved an hour before the latest fix (the active leg slower, with tighter
+    limits, and the destination moved): the quick watch of a long voyage enters it as the engine does over
+    the whole track, with the same figures, and still reads only the recent fixes."""
+    import dataclasses
+    from dataclasses import asdict
+
+    from passagelog.model import LegPlan
+    from passagelog.tui.session import Session
+    from passagelog.tui.watch_state import WatchSettings, compute_watch, read_watch
+
+    route = session.route
+    t0 = datetime(2026, 5, 1, 6, 0, tzinfo=timezone.utc)
+    track = _weave_track(route, t0)
+    session.logbook.add_fixes(session.voyage.voyage_id, track)
+    t_rev = track[-1].time_utc - timedelta(hours=1)
+    end = route.waypoints[3]
+    lat, lon, _ = direct(end.lat, end.lon, 0.0, 3 * NM)
+    revised = route.with_changes(
+        waypoints=route.waypoints[:3] + (dataclasses.replace(end, lat=lat, lon=lon),),
+        legs=route.legs[:1] + (LegPlan("great-circle", 10.0, 926.0, 926.0, 1852.0),)
+        + route.legs[2:])
+    Session(session.db_path, clock=lambda: t_rev).save_revision(revised, "slower, Ponta moved")
+    session.reload_route()
+    assert len(session.plan_revisions) == 2
+    exact = compute_watch(session.route, session.fixes(), settings=WatchSettings(
+        exact_max_fixes=10**9), plan_revisions=session.plan_revisions,
+        zd_minutes=session.zd_minutes, planned_departure_utc=session.voyage.departure_utc)
+    assert exact.status.revision == 1 and exact.status.xtl_m == 926.0
+
+    def whole_voyage(*_a, **_k):
+        raise AssertionError("the whole voyage was read")
+
+    monkeypatch.setattr(type(session), "fix_arrays", whole_voyage)
+    quick = read_watch(session, WatchSettings(exact_max_fixes=10))
+    assert quick.extra["tail_from_leg"] and quick.fixes_used < len(track)
+    e, q = asdict(exact.status), asdict(quick.status)
+    for key in e:
+        if isinstance(e[key], float):
+            assert q[key] == pytest.approx(e[key], rel=1e-9, abs=1e-6), key
+        else:
+            assert q[key] == e[key], key
+    assert quick.xtl_port_m == exact.xtl_port_m == 926.0
