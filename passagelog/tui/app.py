@@ -98,7 +98,12 @@ class PassagelogApp(App):
         voyage = self.session.voyage
         self.sub_title = (f"{voyage.name}  {self.session.db_path.name}" if voyage
                           else f"no voyage  {self.session.db_path.name}")
-        self.call_after_refresh(self.action_view, "plan")
+        self.call_after_refresh(self._focus_view)
+
+    async def _focus_view(self) -> None:
+        """Focus the view on show once the screen is up: Plan, unless a key pressed while
+        the app was starting (F4, say) has already chosen another."""
+        await self.action_view(self.query_one("#views", TabbedContent).active or "plan")
 
     # --- actions ---
     def action_help(self) -> None:

@@ -15,7 +15,7 @@ from rich.text import Text
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Vertical
+from textual.containers import VerticalScroll
 from textual.widgets import Static
 
 from passagelog.errors import PassagelogError
@@ -110,11 +110,13 @@ def figures_grid(state: WatchState) -> Table:
     return grid
 
 
-class WatchView(Vertical, can_focus=True):
-    """Latest fix, active leg, XTE bar, progress and ETAs, alerts."""
+class WatchView(VerticalScroll, can_focus=True):
+    """Latest fix, active leg, XTE bar, alerts, then progress and ETAs (scrolls when the
+    screen is too small for all of it)."""
 
     DEFAULT_CSS = """
     #watch-xte { height: auto; }
+    #watch-figures { margin-top: 1; }
     """
     BINDINGS = [Binding("ctrl+l", "refresh_now", "Refresh")]
     PALETTE = (("Watch: refresh now", "refresh_now", "Reconcile the latest fixes now"),)
@@ -132,8 +134,9 @@ class WatchView(Vertical, can_focus=True):
         yield Static("", id="watch-leg")
         yield Static("", id="watch-xte")
         yield XteBar(id="watch-bar")
-        yield Static("", id="watch-figures")
+        # the alerts come before the figures, so that a small screen never hides them
         yield Static("", id="watch-alerts")
+        yield Static("", id="watch-figures")
 
     def on_mount(self) -> None:
         poll = getattr(self.app, "watch_poll_s", 0.5)

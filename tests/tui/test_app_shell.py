@@ -124,3 +124,15 @@ def test_a_calm_screen_unless_animations_are_asked_for(session, monkeypatch):
     assert PassagelogApp(session=session).animation_level == "none"
     monkeypatch.setenv("TEXTUAL_ANIMATIONS", "full")
     assert PassagelogApp(session=session).animation_level == constants.TEXTUAL_ANIMATIONS
+
+
+async def test_a_view_chosen_while_the_app_starts_stays_chosen(session):
+    """F4 pressed before the first screen is up is not undone by the start-up, which
+    focuses the Plan only when no other view was chosen."""
+    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f4")
+        await pilot.pause()
+        await pilot.pause()
+        assert app.query_one("#views").active == "watch"
+        assert app.focused is app.query_one("#watch-view")
