@@ -204,7 +204,12 @@ def _review_arrays(fixes, as_fix_arrays):
         return as_fix_arrays(fixes)
     names = ("time_s", "lat", "lon", "heading", "stw_kn", "sog_kn", "cog", "suspect", "fix_id")
     if all(hasattr(fixes, n) for n in names):
-        return FixArrays(*(np.asarray(getattr(fixes, n)) for n in names))
+        def column(name: str) -> np.ndarray:
+            view = np.asarray(getattr(fixes, name)).view()  # read-only, not copied
+            view.setflags(write=False)
+            return view
+
+        return FixArrays(*(column(n) for n in names))
     return as_fix_arrays(fixes)
 
 
