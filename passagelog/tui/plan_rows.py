@@ -10,10 +10,10 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field, replace
-from datetime import datetime, timedelta
+from datetime import datetime, timedelta, timezone
 
 from passagelog.errors import InputError
-from passagelog.model import SAILINGS, LegPlan, Route, Waypoint
+from passagelog.model import SAILINGS, LegPlan, Route, ScheduleItem, Waypoint
 from passagelog.nav.units import NM_M, travel_seconds
 
 
@@ -31,6 +31,11 @@ class PlanRow:
     turn_radius_m: float | None = None
     arrival_radius_m: float | None = None
     notes: str = ""
+    # the schedule at this waypoint, fixed by the officer (manual items; UTC)
+    eta_utc: datetime | None = None
+    etd_utc: datetime | None = None
+    # items of other named schedules at this waypoint, kept as they came
+    other_times: tuple = ()
     # kept so a round trip through the editor loses nothing the table does not show
     waypoint_extras: dict = field(default_factory=dict)
     leg_extras: dict = field(default_factory=dict)
@@ -47,17 +52,43 @@ class RowFigures:
     final_course: float | None = None
     cumulative_m: float = 0.0
     leg_time_s: float | None = None
-    eta_utc: datetime | None = None
+    eta_utc: datetime | None = None          # the plan's time here: fixed ETA, else computed
+    etd_utc: datetime | None = None          # departure from here: fixed ETD, else eta_utc
+    planned_arrival_utc: datetime | None = None  # arrival at the planned speed
+    required_kn: float | None = None         # speed that makes a fixed ETA from the last
+                                             # fixed time (or the departure) along the route
+    required_from: int | None = None         # the row that speed runs from
     alteration_deg: float | None = None      # course alteration at this waypoint (+ starboard)
     wheel_over_m: float | None = None        # wheel-over distance before this waypoint
     problem: str = ""
 
 
+def main_schedule_name(route: Route) -> str:
+    """The schedule the Plan view edits: the one of the first manual item, else the first."""
+    for item in route.schedule:
+        if item.kind == "manual":
+            return item.schedule_name
+    return route.schedule[0].schedule_name if route.schedule else ""
+
+
 def rows_from_route(route: Route) -> list[PlanRow]:
     rows: list[PlanRow] = []
+    main = main_schedule_name(route)
     for i, wp in enumerate(route.waypoints):
         leg = route.legs[i - 1] if i > 0 else LegPlan()
+        eta = etd = None
+        other = []
+        for item in route.schedule:
+            if item.waypoint_index != i:
+                continue
+            if item.schedule_name != main:
+                other.append(item)
+            elif item.kind == "manual":
+                eta = item.eta_utc if item.eta_utc is not None else eta
+                etd = item.etd_utc if item.etd_utc is not None else etd
+            # calculated items of the main schedule are worked out again by compute()
         rows.append(PlanRow(
+            eta_utc=eta if i > 0 else None, etd_utc=etd, other_times=tuple(other),
             name=wp.name, lat=wp.lat, lon=wp.lon, sailing=leg.sailing, speed_kn=leg.speed_kn,
             xtl_port_m=leg.xtl_port_m, xtl_stbd_m=leg.xtl_stbd_m,
             turn_radius_m=leg.turn_radius_m, arrival_radius_m=wp.arrival_radius_m,
@@ -70,8 +101,17 @@ def rows_from_route(route: Route) -> list[PlanRow]:
 
 
 def route_from_rows(name: str, rows: list[PlanRow], *, base: Route | None = None,
-                    note: str = "") -> Route:
-    """The rows as a model Route (validated by the model's own checks)."""
+                    note: str = "", departure_utc: datetime | None = None) -> Route:
+    """The rows as a model Route (validated by the model's own checks).
+
+    The schedule: the officer's fixed times as ``manual`` items and, for every other
+    waypoint whose time is known, the time :func:`compute` works out as a ``calculated``
+    item (so the review engine's planned times are the ones the Plan view shows). With no
+    fixed time and no schedule in ``base`` no schedule is written (the review then runs
+    from the voyage's planned departure at the planned speeds, the same figures).
+    ``departure_utc``: the voyage's planned departure (used where row 1 has no fixed ETD).
+    """
+    check_schedule(rows, departure_utc)
     waypoints = []
     legs = []
     for i, row in enumerate(rows):
@@ -89,7 +129,20 @@ def route_from_rows(name: str, rows: list[PlanRow], *, base: Route | None = None
                 speed_min_kn=lx.get("speed_min_kn"), speed_max_kn=lx.get("speed_max_kn"),
                 extras=tuple(lx.get("extras") or ()),
             ))
-    schedule = base.schedule if base is not None and len(base.waypoints) == len(rows) else ()
+    name_s = main_schedule_name(base) if base is not None else ""
+    fixed = any(r.eta_utc is not None or r.etd_utc is not None for r in rows)
+    schedule = []
+    if fixed or (base is not None and any(s.schedule_name == name_s for s in base.schedule)):
+        figs = compute(rows, departure_utc)
+        for i, (row, fig) in enumerate(zip(rows, figs)):
+            if row.eta_utc is not None or row.etd_utc is not None:
+                schedule.append(ScheduleItem(i, row.eta_utc, row.etd_utc, "manual", name_s))
+            elif fig.eta_utc is not None or fig.etd_utc is not None:
+                schedule.append(ScheduleItem(i, fig.eta_utc if i > 0 else None,
+                                             fig.etd_utc if i < len(rows) - 1 else None,
+                                             "calculated", name_s))
+    for i, row in enumerate(rows):
+        schedule += [replace(s, waypoint_index=i) for s in row.other_times]
     return Route(name=name, waypoints=tuple(waypoints), legs=tuple(legs),
                  schedule=schedule, note=note,
                  extras=base.extras if base is not None else ())
@@ -113,8 +166,8 @@ def insert_after(rows: list[PlanRow], index: int) -> list[PlanRow]:
         template = here
     else:
         lat, lon, template = max(-89.9, min(89.9, here.lat + 0.1)), here.lon, here
-    new = replace(template, name=_new_name(rows), lat=lat, lon=lon,
-                  waypoint_extras={}, leg_extras=dict(template.leg_extras))
+    new = replace(template, name=_new_name(rows), lat=lat, lon=lon, eta_utc=None,
+                  etd_utc=None, other_times=(), waypoint_extras={}, leg_extras=dict(template.leg_extras))
     out.insert(index + 1, new)
     return out
 
@@ -136,15 +189,21 @@ def move(rows: list[PlanRow], index: int, step: int) -> list[PlanRow]:
     out = list(rows)
     a, b = out[index], out[j]
     out[index] = replace(a, name=b.name, lat=b.lat, lon=b.lon,
-                         arrival_radius_m=b.arrival_radius_m, waypoint_extras=b.waypoint_extras)
+                         arrival_radius_m=b.arrival_radius_m, waypoint_extras=b.waypoint_extras,
+                         eta_utc=b.eta_utc, etd_utc=b.etd_utc, other_times=b.other_times)
     out[j] = replace(b, name=a.name, lat=a.lat, lon=a.lon,
-                     arrival_radius_m=a.arrival_radius_m, waypoint_extras=a.waypoint_extras)
+                     arrival_radius_m=a.arrival_radius_m, waypoint_extras=a.waypoint_extras,
+                     eta_utc=a.eta_utc, etd_utc=a.etd_utc, other_times=a.other_times)
+    for k in (index, j):  # no arrival time at the departure point
+        if k == 0 and out[k].eta_utc is not None:
+            out[k] = replace(out[k], eta_utc=None)
     return out
 
 
 def reverse(rows: list[PlanRow]) -> list[PlanRow]:
     """The plan sailed the other way: waypoints in reverse order; each leg keeps its settings
-    (sailing, speed, limits swapped port <-> starboard since the direction of travel flips)."""
+    (sailing, speed, limits swapped port <-> starboard since the direction of travel flips).
+    The schedule is dropped: its times do not apply the other way (as ``Route.reversed``)."""
     n = len(rows)
     out = []
     for i in range(n):
@@ -157,6 +216,7 @@ def reverse(rows: list[PlanRow]) -> list[PlanRow]:
             xtl_port_m=src.xtl_stbd_m if i > 0 else None,
             xtl_stbd_m=src.xtl_port_m if i > 0 else None,
             turn_radius_m=(rows[n - 1 - i].turn_radius_m if 0 < i else None),
+            eta_utc=None, etd_utc=None, other_times=(),
         ))
     return out
 
@@ -225,7 +285,11 @@ def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigu
             raw[i].update(distance_m=own[0], initial_course=own[1], final_course=own[2])
     out: list[RowFigures] = []
     cum = 0.0
-    t = departure_utc
+    # t: departure from the previous waypoint (row 1: its fixed ETD, else the voyage's)
+    t = rows[0].etd_utc if n and rows[0].etd_utc is not None else departure_utc
+    # the last fixed time before this row (time, cumulative distance, row): the required
+    # speed to a fixed ETA is the distance from there over the time from there
+    anchor = (t, 0.0, 0) if t is not None else None
     for i in range(n):
         r = raw[i]
         alteration = wo = None
@@ -241,18 +305,96 @@ def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigu
             if speed:
                 leg_time = travel_seconds(r["distance_m"], speed)
         problem = r.get("problem", "")
-        if i > 0 and leg_time is None and t is not None:
-            t = None  # no speed on a leg: later ETAs are unknown
-            problem = problem or "no planned speed: later ETAs unknown"
-        elif leg_time is not None and t is not None:
-            t = t + timedelta(seconds=leg_time)
+        row = rows[i]
+        planned = required = None
+        if i == 0:
+            eta = None
+        else:
+            if leg_time is not None and t is not None:
+                planned = t + timedelta(seconds=leg_time)
+            eta = row.eta_utc if row.eta_utc is not None else planned
+            if row.eta_utc is not None and anchor is not None and "distance_m" in r:
+                span = (row.eta_utc - anchor[0]).total_seconds()
+                if span > 0:
+                    required = (cum - anchor[1]) / NM_M / (span / 3600.0)
+                else:
+                    problem = problem or (
+                        f"fixed ETA {_hm(row.eta_utc)} is not after the departure from "
+                        f"{rows[anchor[2]].name} ({_hm(anchor[0])})")
+            if eta is None and t is not None and not problem:
+                problem = "no planned speed: later ETAs unknown"
+        etd = row.etd_utc if row.etd_utc is not None else (eta if i > 0 else t)
+        if (i > 0 and row.etd_utc is not None and eta is not None and row.etd_utc < eta
+                and not problem):
+            problem = f"fixed ETD {_hm(row.etd_utc)} is before the ETA {_hm(eta)}"
         out.append(RowFigures(
             distance_m=r.get("distance_m"), gc_distance_m=r.get("gc_distance_m"),
             rhumb_distance_m=r.get("rhumb_distance_m"), initial_course=r.get("initial_course"),
             final_course=r.get("final_course"), cumulative_m=cum, leg_time_s=leg_time,
-            eta_utc=t, alteration_deg=alteration, wheel_over_m=wo, problem=problem,
+            eta_utc=eta, etd_utc=etd, planned_arrival_utc=planned, required_kn=required,
+            required_from=anchor[2] if required is not None else None,
+            alteration_deg=alteration, wheel_over_m=wo, problem=problem,
         ))
+        t = etd
+        if i > 0 and (row.eta_utc is not None or row.etd_utc is not None) and etd is not None:
+            anchor = (etd, cum, i)
     return out
+
+
+def _hm(t: datetime) -> str:
+    return t.astimezone(timezone.utc).strftime("%d %H:%MZ")
+
+
+def check_schedule(rows: list[PlanRow], departure_utc: datetime | None = None) -> None:
+    """Refuse fixed times out of order along the route (an ETA before an earlier fixed
+    time or the planned departure, an ETD before its own ETA), naming the waypoints."""
+    last = None  # (time, what)
+    if departure_utc is not None and rows and rows[0].etd_utc is None:
+        last = (departure_utc, f"the planned departure from {rows[0].name}")
+    for i, row in enumerate(rows):
+        for label, when in (("ETA", row.eta_utc), ("ETD", row.etd_utc)):
+            if when is None:
+                continue
+            if last is not None and when < last[0]:
+                raise InputError(
+                    f"schedule: {label} {_hm(when)} at row {i + 1} ({row.name}) is before "
+                    f"{last[1]} {_hm(last[0])}; fixed times must run in order along the route")
+            last = (when, f"the {label} at row {i + 1} ({row.name})")
+
+
+def parse_schedule_time(text: str, ref: datetime | None, what: str) -> datetime | None:
+    """A fixed ETA or ETD typed in the editor, in UTC: empty for none; ISO 8601
+    (``2026-05-03T08:00Z``; no zone means UTC; ship's time with its zone, ``... ZD-1``, is
+    turned into UTC), or day and time as the table shows them (``03 08:00Z``, ``030800Z``),
+    in the month of ``ref`` (the computed time at that waypoint, or the departure)."""
+    import re
+
+    from passagelog.nav.zonetime import parse_time_utc
+
+    t = text.strip()
+    if not t:
+        return None
+    m = re.fullmatch(r"(\d{1,2})\s*(\d{2}):?(\d{2})\s*(?:Z|UTC)?", t, re.IGNORECASE)
+    if m is None:
+        try:
+            return parse_time_utc(t, 0)
+        except InputError as exc:
+            if re.match(r"\d{4}-\d{2}-\d{2}[Tt ]\d{2}:\d{2}", t):
+                raise InputError(f"{what}: {exc}") from None  # the shape is right: say why
+            raise InputError(f"{what} {t!r} is not a time in UTC; type e.g. "
+                             "2026-05-03T08:00Z or 03 08:00Z (day and time)") from None
+    if ref is None:
+        raise InputError(f"{what} {t!r}: give the full date, e.g. 2026-05-03T08:00Z (no "
+                         "departure time to take the month from)")
+    ref = ref.astimezone(timezone.utc)
+    day, hour, minute = int(m[1]), int(m[2]), int(m[3])
+    if hour > 23 or minute > 59:
+        raise InputError(f"{what} {t!r}: hours run 00-23 and minutes 00-59")
+    try:
+        return ref.replace(day=day, hour=hour, minute=minute, second=0, microsecond=0)
+    except ValueError:
+        raise InputError(f"{what} {t!r}: day {day} is not in {ref:%Y-%m}; give the full "
+                         f"date, e.g. {ref:%Y-%m}-01T{hour:02d}:{minute:02d}Z") from None
 
 
 # --- parsing of the editor's fields (NM and knots at the edge) ---

@@ -3,7 +3,10 @@
 The table shows every waypoint with the leg that ends at it and the figures computed from
 them (courses, distance by the leg's sailing and by both sailings, cumulative distance, time,
 ETA in UTC and ship's time, wheel-over distance). The editor under the table changes the
-selected row; the figures follow as you type. Ctrl+S saves the edits as a new revision after
+selected row; the figures follow as you type. A waypoint may carry a fixed ETA and/or ETD
+(UTC; the schedule, marked ``*``): legs after a fixed ETD start from it, a fixed ETA shows
+the speed required to make it ("Req kn") beside the planned speed, and the ETD at row 1 is
+the planned departure. Ctrl+S saves the edits as a new revision after
 asking for a change note.
 """
 
@@ -23,9 +26,10 @@ from passagelog.tui import text as fmt
 
 COLUMNS = (
     ("#", "n"), ("Waypoint", "name"), ("Position", "pos"), ("Sail", "sail"), ("Kn", "kn"),
+    ("Req kn", "req"),
     ("XTL P/S", "xtl"), ("Turn", "turn"), ("Course", "course"), ("Dist", "dist"),
     ("GC", "gc"), ("RL", "rl"), ("Cum", "cum"), ("Time", "time"), ("ETA UTC", "eta"),
-    ("ETA ship", "etz"), ("Alter", "alter"), ("WO", "wo"),
+    ("ETD UTC", "etd"), ("ETA ship", "etz"), ("Alter", "alter"), ("WO", "wo"),
 )
 
 FIELDS = (
@@ -39,11 +43,29 @@ FIELDS = (
     ("arrival", "Arrival R NM", ""),
 )
 
+TIME_FIELDS = (
+    ("eta", "Fixed ETA UTC", "none; e.g. 03 08:00Z"),
+    ("etd", "Fixed ETD UTC", "e.g. 03 09:00Z"),
+)
+
+FIXED = "*"  # marks a time fixed in the schedule (the rest are worked out)
+
 SAILING_CHOICES = [("RL rhumb line", "rhumb"), ("GC great circle", "great-circle")]
 
 
 class PlanView(Vertical):
     """Plan table and row editor."""
+
+    DEFAULT_CSS = """
+    PlanView #plan-times {
+        grid-size: 4;
+        grid-columns: auto 1fr auto 1fr;
+        grid-rows: 1;
+        grid-gutter: 0 1;
+        height: 1;
+        padding: 0 1;
+    }
+    """
 
     BINDINGS = [
         Binding("enter", "edit", "Edit", show=False),
@@ -88,6 +110,10 @@ class PlanView(Vertical):
             for fid, label, placeholder in FIELDS[2:]:
                 yield Label(label, classes="field-label")
                 yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
+        with Grid(id="plan-times"):
+            for fid, label, placeholder in TIME_FIELDS:
+                yield Label(label, classes="field-label")
+                yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
         yield Static("", id="plan-message", classes="field-error")
 
     def on_mount(self) -> None:
@@ -104,6 +130,7 @@ class PlanView(Vertical):
         self.dirty = False
         self.refresh_table()
         self.query_one("#plan-editor").display = bool(self.rows)
+        self.query_one("#plan-times").display = bool(self.rows)
         self.fill_editor()
 
     def refresh_table(self, keep_row: int | None = None) -> None:
@@ -121,7 +148,8 @@ class PlanView(Vertical):
             sail = ("GC" if row.sailing == "great-circle" else "RL") if leg else ""
             table.add_row(
                 str(i + 1), row.name, fmt.position(row.lat, row.lon), sail,
-                fmt.num_opt(row.speed_kn) if leg else "", xtl,
+                fmt.num_opt(row.speed_kn) if leg else "",
+                f"{fig.required_kn:.1f}" if fig.required_kn is not None else "", xtl,
                 fmt.nm_opt(row.turn_radius_m) if leg else "",
                 f"{fmt.course(fig.initial_course)}" if leg else "",
                 fmt.nm(fig.distance_m) if leg else "",
@@ -129,7 +157,10 @@ class PlanView(Vertical):
                 fmt.nm(fig.rhumb_distance_m) if leg else "",
                 fmt.nm(fig.cumulative_m),
                 fmt.duration(fig.leg_time_s) if leg else "",
-                fmt.utc_time(fig.eta_utc), fmt.ship_time(fig.eta_utc, zd),
+                _fixed(fig.eta_utc, row.eta_utc),
+                (_fixed(fig.etd_utc, row.etd_utc)
+                 if i == 0 or row.etd_utc is not None else ""),
+                fmt.ship_time(fig.eta_utc if leg else fig.etd_utc, zd),
                 (f"{fig.alteration_deg:+.0f}°" if fig.alteration_deg is not None else ""),
                 fmt.nm(fig.wheel_over_m, 2) if fig.wheel_over_m is not None else "",
                 key=str(i),
@@ -159,10 +190,12 @@ class PlanView(Vertical):
         gc, rl = total_of("gc_distance_m"), total_of("rhumb_distance_m")
         rev = route.revision if route is not None and route.revision is not None else "–"
         state = "  [b]edited, not saved (Ctrl+S)[/b]" if self.dirty else ""
+        dep = self.figures[0].etd_utc if self.figures else voyage.departure_utc
+        fixed_dep = FIXED if self.rows and self.rows[0].etd_utc is not None else ""
         head.update(
             f"[b]{route.name if route else 'plan'}[/b] rev {rev}  {len(self.rows)} WP  "
             f"{total / NM_M:.1f} NM as planned (all GC {gc}, all RL {rl})  "
-            f"dep {fmt.utc_time(voyage.departure_utc)}  ZD {fmt.zd_text(voyage.zd_minutes)}"
+            f"ETD {fmt.utc_time(dep)}{fixed_dep}  ZD {fmt.zd_text(voyage.zd_minutes)}"
             f"{state}"
         )
 
@@ -184,6 +217,7 @@ class PlanView(Vertical):
                 "speed": fmt.num_opt(row.speed_kn), "xtl_port": fmt.nm_opt(row.xtl_port_m),
                 "xtl_stbd": fmt.nm_opt(row.xtl_stbd_m), "turn": fmt.nm_opt(row.turn_radius_m),
                 "arrival": fmt.nm_opt(row.arrival_radius_m),
+                "eta": _time_text(row.eta_utc), "etd": _time_text(row.etd_utc),
             }
             for fid, value in values.items():
                 field = self.query_one(f"#plan-{fid}", Input)
@@ -194,12 +228,33 @@ class PlanView(Vertical):
             for fid in leg_fields:
                 self.query_one(f"#plan-{fid}", Input).disabled = i == 0
             self.query_one("#plan-sailing", Select).disabled = i == 0
-            self.query_one("#plan-message", Static).update(
-                "Row 1 is the departure point: leg settings start at row 2. "
-                "\u2190/\u2192 scroll the table sideways."
-                if i == 0 else f"Editing row {i + 1}: {row.name} and the leg ending at it.")
+            self.query_one("#plan-eta", Input).disabled = i == 0
+            message = self.query_one("#plan-message", Static)
+            message.remove_class("-bad")
+            message.update(self.row_message(i))
         finally:
             self.call_after_refresh(self._done_loading)
+
+    def row_message(self, i: int) -> str:
+        """What the line under the editor says about row ``i``."""
+        row = self.rows[i]
+        fig = self.figures[i] if i < len(self.figures) else None
+        if i == 0:
+            text = ("Row 1 is the departure point: its fixed ETD is the planned departure; "
+                    "leg settings start at row 2. \u2190/\u2192 scroll the table.")
+        else:
+            text = f"Editing row {i + 1}: {row.name} and the leg ending at it."
+        if fig is not None and fig.problem:
+            return f"{text} [b]{fig.problem}[/b]"
+        if fig is not None and fig.required_kn is not None:
+            at = (f"at {fmt.num_opt(row.speed_kn)} kn {fmt.utc_time(fig.planned_arrival_utc)}; "
+                  if row.speed_kn and fig.planned_arrival_utc is not None else "")
+            k = fig.required_from or 0
+            since = self.figures[k].etd_utc
+            return (f"Row {i + 1} {row.name}: {at}[b]{fig.required_kn:.1f} kn[/b] from "
+                    f"{self.rows[k].name} (ETD {fmt.utc_time(since)}) makes the fixed ETA "
+                    f"{fmt.utc_time(row.eta_utc)}{FIXED}.")
+        return text
 
     def _done_loading(self) -> None:
         self._loading = False
@@ -273,6 +328,17 @@ class PlanView(Vertical):
         value, ok = take("arrival", lambda t: pr.parse_nm(t, "arrival radius"))
         if ok:
             new.arrival_radius_m = value
+        fig = self.figures[i] if i < len(self.figures) else None
+        ref = None
+        if fig is not None:
+            ref = fig.planned_arrival_utc or fig.eta_utc or fig.etd_utc
+        ref = ref or (self.figures[0].etd_utc if self.figures else None)
+        for fid, what in (("eta", "fixed ETA"), ("etd", "fixed ETD")):
+            if fid == "eta" and i == 0:
+                continue
+            value, ok = take(fid, lambda t, w=what: pr.parse_schedule_time(t, ref, w))
+            if ok:
+                setattr(new, f"{fid}_utc", value)
         message = self.query_one("#plan-message", Static)
         changed = vars(new) != vars(row)
         if changed:
@@ -284,7 +350,9 @@ class PlanView(Vertical):
             message.update("[b]Not taken:[/b] " + "; ".join(errors))
             message.add_class("-bad")
         elif changed or message.has_class("-bad"):
-            message.update(f"Row {i + 1} ({new.name}) updated.")
+            text = self.row_message(i)
+            message.update(text if "fixed ETA" in text or "[b]" in text
+                           else f"Row {i + 1} ({new.name}) updated.")
             message.remove_class("-bad")
         return not errors
 
@@ -326,8 +394,10 @@ class PlanView(Vertical):
 
     def action_reverse(self) -> None:
         if self.rows:
+            timed = any(r.eta_utc or r.etd_utc for r in self.rows)
             self._changed(pr.reverse(self.rows), 0)
-            self.notify("Plan reversed (port and starboard limits swapped with the direction).")
+            self.notify("Plan reversed (port and starboard limits swapped with the direction)"
+                        + ("; fixed ETAs/ETDs dropped (Ctrl+Z undoes)." if timed else "."))
 
     def action_undo(self) -> None:
         if self.history:
@@ -350,12 +420,15 @@ class PlanView(Vertical):
         base = self.session.route
         try:
             route = pr.route_from_rows(base.name if base else self.session.voyage.name,
-                                       self.rows, base=base)
+                                       self.rows, base=base,
+                                       departure_utc=self.session.voyage.departure_utc)
         except PassagelogError as exc:
             self.notify(str(exc), severity="error")
             return
         total = self.figures[-1].cumulative_m / NM_M if self.figures else 0.0
-        summary = f"{len(self.rows)} waypoints, {total:.1f} NM."
+        fixed = sum((r.eta_utc is not None) + (r.etd_utc is not None) for r in self.rows)
+        summary = f"{len(self.rows)} waypoints, {total:.1f} NM" + (
+            f", {fixed} fixed time{'s' if fixed != 1 else ''} in the schedule." if fixed else ".")
 
         def done(note: str | None) -> None:
             if note:
@@ -377,6 +450,21 @@ class PlanView(Vertical):
         self.load()
         self.notify(f"Saved plan revision {rev}.")
         self.post_message(self.Saved(rev))
+
+
+def _fixed(shown, fixed) -> str:
+    """A time for the table, marked when the schedule fixes it."""
+    return fmt.utc_time(shown) + (FIXED if fixed is not None else "")
+
+
+def _time_text(t) -> str:
+    """A fixed time for its editor field (read back by ``parse_schedule_time``)."""
+    if t is None:
+        return ""
+    from passagelog.nav.zonetime import format_utc
+
+    text = format_utc(t)
+    return text[:-4] + "Z" if text.endswith(":00Z") else text
 
 
 def _parse_name(text: str) -> str:
