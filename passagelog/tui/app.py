@@ -146,6 +146,8 @@ class PassagelogApp(App):
             ("Plan: move waypoint down", "move_down", "Move it down (Ctrl+Down)"),
             ("Plan: reverse", "reverse", "Reverse the plan (Ctrl+R)"),
             ("Plan: undo", "undo", "Undo the last edit (Ctrl+Z)"),
+            ("Plan: fixed ETA/ETD", "times",
+             "Set the selected waypoint's fixed ETA or ETD in UTC (Ctrl+T)"),
             ("Plan: save revision", "save", "Save the edits as a new revision (Ctrl+S)"),
         )
         for title, action, help_text in plan:

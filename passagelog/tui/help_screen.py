@@ -40,11 +40,15 @@ HELP_TEXT = """\
 | Ctrl+Up / Ctrl+Down | move the selected waypoint up / down |
 | Ctrl+R | reverse the plan |
 | Ctrl+Z | undo the last edit |
+| Ctrl+T | to the fixed ETA / ETD fields of the selected waypoint (UTC) |
 | Ctrl+S | save the edits as a new revision (asks for a change note) |
 
 Positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
 `47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in knots.
 Each row's leg settings describe the leg that **ends** at that waypoint.
+Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z` or
+`03 08:00Z`; empty for none. Row 1's ETD is the planned departure; legs after a fixed ETD
+start from it; Req kn is the speed that makes a fixed ETA from the last fixed time.
 
 **Log**: Ctrl+S logs the fix in the form (on the Entries tab: adds the log entry); in the
 fix list, Enter opens the correction dialog (the original stays in the record, struck

@@ -75,6 +75,7 @@ class PlanView(Vertical):
         Binding("ctrl+down", "move(1)", "Move down", show=False),
         Binding("ctrl+r", "reverse", "Reverse"),
         Binding("ctrl+z", "undo", "Undo", show=False),
+        Binding("ctrl+t", "times", "Times"),
         Binding("ctrl+s", "save", "Save"),
     ]
 
@@ -157,7 +158,7 @@ class PlanView(Vertical):
                 fmt.nm(fig.rhumb_distance_m) if leg else "",
                 fmt.nm(fig.cumulative_m),
                 fmt.duration(fig.leg_time_s) if leg else "",
-                _fixed(fig.eta_utc, row.eta_utc),
+                _fixed(fig.eta_utc, row.eta_utc) if leg else "",
                 (_fixed(fig.etd_utc, row.etd_utc)
                  if i == 0 or row.etd_utc is not None else ""),
                 fmt.ship_time(fig.eta_utc if leg else fig.etd_utc, zd),
@@ -359,6 +360,12 @@ class PlanView(Vertical):
     def action_edit(self) -> None:
         if self.rows:
             self.query_one("#plan-name", Input).focus()
+
+    def action_times(self) -> None:
+        """To the selected row's fixed ETA field (row 1: its ETD, the planned departure)."""
+        if self.rows:
+            fid = "etd" if self._editor_row == 0 else "eta"
+            self.query_one(f"#plan-{fid}", Input).focus()
 
     def action_insert(self) -> None:
         if self.rows:

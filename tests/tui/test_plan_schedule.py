@@ -179,8 +179,10 @@ async def test_schedule_edited_saved_reopened_and_reviewed(session):
         assert "ETD 01 08:00Z*" in str(app.query_one("#plan-head").render())
         app.query_one("#plan-table").move_cursor(row=3)
         await pilot.pause()
+        app.query_one("#plan-table").focus()
+        await pilot.press("ctrl+t")  # to the selected row's fixed ETA
         field = app.query_one("#plan-eta")
-        field.focus()
+        assert app.focused is field
         await pilot.press(*"06 12:0")
         await pilot.press("x")
         assert field.has_class("-bad")
