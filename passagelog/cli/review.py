@@ -17,6 +17,7 @@ import click
 
 from passagelog.cli.common import TABLE_FORMATS, db_path_from, options, write_csv
 from passagelog.errors import InputError
+from passagelog.report.display import span_text
 
 TABLE_CHOICES = ("fixes", "legs", "passages", "episodes", "noon", "gaps", "suspects")
 NM_M = 1852.0
@@ -318,17 +319,6 @@ def _deg(value: float | None) -> str:
     return "-" if value is None else f"{value:05.1f}°T"
 
 
-def _span(seconds: float) -> str:
-    """A length of time as people say it: ``45 min``, ``7 h 30 min``, ``3 d 04 h``."""
-    s = int(round(abs(seconds)))
-    days, rem = divmod(s, 86400)
-    h, rem = divmod(rem, 3600)
-    if days >= 2:
-        return f"{days} d {h:02d} h"
-    h += 24 * days
-    return f"{h} h {rem // 60:02d} min" if h else f"{rem // 60} min"
-
-
 def _when(t_s: float | None, zd_minutes: int, *, seconds: bool = False) -> str:
     """A time in UTC and in ship's time with its zone: ``2026-03-01 10:40Z  ship
     2026-03-01 07:40 ZD+3`` (to the minute unless ``seconds``); ``-`` when unknown."""
@@ -361,8 +351,8 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
     lines.append(_line("Plan", plan))
     age = ""
     if now_s is not None:
-        age = (f"  ({_span(now_s - st.time_s)} ago)" if now_s >= st.time_s
-               else f"  ({_span(st.time_s - now_s)} later than this computer's clock)")
+        age = (f"  ({span_text(now_s - st.time_s)} ago)" if now_s >= st.time_s
+               else f"  ({span_text(st.time_s - now_s)} later than this computer's clock)")
     lines.append(_line("Fix", _when(st.time_s, zd_at(st.time_s), seconds=True) + age))
     lines.append(_line("Position", format_position(st.lat, st.lon)
                        + ("  SUSPECT fix" if st.suspect else "")))
@@ -378,11 +368,11 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
                                       f"leg to go {_nm(st.leg_to_go_m)}"))
     lines.append(_line("Next WP", f"{st.to_wp}: DTW {_nm(st.dtw_m)}, BTW {_deg(st.btw)}"))
     lines.append(_line("DTG", f"{_nm(st.route_to_go_m)} to {st.destination} along the plan"))
-    window = _span(st.window_s)
+    window = span_text(st.window_s)
     if st.smg_window_kn is None:
         lines.append(_line("Made good", f"-  (no progress measured over the last {window})"))
     else:
-        used = window if st.window_used_s is None else _span(st.window_used_s)
+        used = window if st.window_used_s is None else span_text(st.window_used_s)
         lines.append(_line("Made good", f"CMG {_deg(st.cmg_window)}, SMG "
                                         f"{st.smg_window_kn:.1f} kn over the last {used}"))
     etas = [("ETA next WP", st.to_wp, st.eta_wp_plan_s, st.eta_wp_smg_s)]
@@ -400,7 +390,7 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
         lines.append(_line("Schedule", "on the plan's time"))
     else:
         word = "behind" if st.delay_s > 0 else "ahead of"
-        lines.append(_line("Schedule", f"{_span(st.delay_s)} {word} the plan"))
+        lines.append(_line("Schedule", f"{span_text(st.delay_s)} {word} the plan"))
     if st.drift_kn is None:
         lines.append(_line("Set/drift", "-  (heading and speed through the water not logged)"))
     else:

@@ -23,6 +23,17 @@ LAT_KEYS = frozenset({"lat", "from_lat", "to_lat"})
 LON_KEYS = frozenset({"lon", "from_lon", "to_lon"})
 
 
+def span_text(seconds: float) -> str:
+    """A length of time as people say it: ``45 min``, ``7 h 30 min``, ``3 d 04 h``."""
+    s = int(round(abs(seconds)))
+    days, rem = divmod(s, 86400)
+    h, rem = divmod(rem, 3600)
+    if days >= 2:
+        return f"{days} d {h:02d} h"
+    h += 24 * days
+    return f"{h} h {rem // 60:02d} min" if h else f"{rem // 60} min"
+
+
 def hours_minutes(seconds: float) -> str:
     """A signed length of time as ``h:mm`` (``-0:05``, ``26:40``), to the nearest minute."""
     minutes = round(abs(seconds) / 60.0)

@@ -19,6 +19,7 @@ from datetime import datetime, timezone
 import numpy as np
 
 from passagelog.nav.units import NM_M
+from passagelog.report.display import span_text  # noqa: F401 - also used by watch_view
 
 #: Alert thresholds (common practice; each one is a setting of :class:`WatchSettings`).
 DEFAULT_APPROACH_M = 1.0 * NM_M
@@ -339,16 +340,5 @@ def alerts_for(state: WatchState, now_s: float,
     if s.delay_s is not None and s.delay_s > settings.behind_s:
         out.append(Alert("behind", f"BEHIND SCHEDULE by {span_text(s.delay_s)}", "warning"))
     return tuple(out)
-
-
-def span_text(seconds: float) -> str:
-    """A length of time as people say it: ``45 min``, ``7 h 30 min``, ``3 d 04 h``."""
-    s = int(round(abs(seconds)))
-    days, rem = divmod(s, 86400)
-    h, rem = divmod(rem, 3600)
-    if days >= 2:
-        return f"{days} d {h:02d} h"
-    h += 24 * days
-    return f"{h} h {rem // 60:02d} min" if h else f"{rem // 60} min"
 
 

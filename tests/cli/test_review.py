@@ -169,7 +169,7 @@ def test_status_shows_labels_units_and_dashes(files):
 
 
 def test_status_span_wording():
-    from passagelog.cli.review import _span
+    from passagelog.report.display import span_text as _span
 
     assert [_span(s) for s in (0, 59 * 60, 3600, 7.5 * 3600, 47 * 3600, 50 * 3600)] == [
         "0 min", "59 min", "1 h 00 min", "7 h 30 min", "47 h 00 min", "2 d 02 h"]
