@@ -19,11 +19,9 @@ The logbook is built once (by ``bench_tui.build_logbook``) in a temp directory, 
 
 from __future__ import annotations
 
-import argparse
 import asyncio
 import statistics
 import sys
-import tempfile
 import time
 from datetime import datetime, timezone
 from pathlib import Path
@@ -32,7 +30,7 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "benchmarks"))
 
-from bench_tui import DAYS, T0, baseline, build_logbook  # noqa: E402
+from bench_tui import DAYS, T0, baseline, bench_logbook  # noqa: E402
 
 
 def read_everything(path: Path) -> float:
@@ -112,21 +110,7 @@ async def run_app(path: Path) -> dict:
 
 
 def main(argv=None) -> int:
-    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
-    ap.add_argument("--fixes", type=int, default=1_000_000)
-    ap.add_argument("--keep", type=Path, help="build (or reuse) the logbook at this path")
-    args = ap.parse_args(argv)
-    tmp = None
-    if args.keep:
-        path = args.keep
-    else:
-        tmp = tempfile.TemporaryDirectory()
-        path = Path(tmp.name) / "bench.sqlite"
-    if not path.exists():
-        t0 = time.perf_counter()
-        build_logbook(path, args.fixes)
-        print(f"built a logbook of {args.fixes:,} fixes in {time.perf_counter() - t0:.1f} s "
-              "(not timed below)", file=sys.stderr)
+    path, tmp = bench_logbook(argv, __doc__.split("\n\n")[0])
     base = min(baseline(path) for _ in range(2))
     everything = read_everything(path)
     r = asyncio.run(run_app(path))

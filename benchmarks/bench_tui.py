@@ -219,8 +219,10 @@ def append_an_hour(path: Path) -> None:
                 last.lon + 1e-4 * (i + 1), sog_kn=14.0) for i in range(360)])
 
 
-def main(argv=None) -> int:
-    ap = argparse.ArgumentParser(description=__doc__.split("\n\n")[0])
+def bench_logbook(argv, description: str):
+    """The command line shared by the TUI benchmarks (``--fixes``, ``--keep``) and the
+    logbook it names: built once, not timed. Returns ``(path, tmp)``; clean ``tmp`` up."""
+    ap = argparse.ArgumentParser(description=description)
     ap.add_argument("--fixes", type=int, default=1_000_000)
     ap.add_argument("--keep", type=Path, help="build (or reuse) the logbook at this path")
     args = ap.parse_args(argv)
@@ -235,6 +237,11 @@ def main(argv=None) -> int:
         build_logbook(path, args.fixes)
         print(f"built a logbook of {args.fixes:,} fixes in {time.perf_counter() - t0:.1f} s "
               "(not timed below)", file=sys.stderr)
+    return path, tmp
+
+
+def main(argv=None) -> int:
+    path, tmp = bench_logbook(argv, __doc__.split("\n\n")[0])
     # the runs below change the logbook (kept reviews, an hour of fixes): work on a copy
     work = tempfile.TemporaryDirectory()
     path = Path(shutil.copy(path, Path(work.name) / "bench.sqlite"))
