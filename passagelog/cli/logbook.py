@@ -603,7 +603,8 @@ def entry_show(ctx, entry_id, as_json, as_csv) -> None:
 @click.command()
 @click.option("--json", "as_json", is_flag=True, help="Print the report as JSON.")
 @click.option("--rebuild-cache", is_flag=True,
-              help="Rebuild the fast-loading copy of the fixes from the records first.")
+              help="Rebuild the fast-loading copy of the fixes from the records "
+                   "and drop kept review results first.")
 @click.pass_context
 def verify(ctx, as_json, rebuild_cache) -> None:
     """Walk the logbook's record chains; exit 1 naming the first record edited, deleted or

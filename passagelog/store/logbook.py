@@ -859,9 +859,11 @@ class Logbook:
 
     def rebuild_cache(self) -> None:
         """Rebuild the derived fix cache from the fix records (after ``verify`` found the cache
-        differs; the records themselves are not touched)."""
+        differs; the records themselves are not touched) and drop every derived result kept
+        (:mod:`passagelog.store.derived`): they are computed again when next needed."""
         with self.transaction():
             self._conn.execute("DELETE FROM fix_block")
+            self._conn.execute("DELETE FROM derived_result")
             for (vid,) in self._q("SELECT DISTINCT voyage_id FROM fix ORDER BY voyage_id"):
                 arr = self._block_from_rows(vid)
                 for start in range(0, len(arr), 65536):

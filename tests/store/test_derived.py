@@ -55,3 +55,10 @@ def test_bad_arguments_are_refused(book, voyage):
         derived.write_result(book, voyage, " ", "s", b"x")
     with pytest.raises(InputError, match="bytes"):
         derived.write_result(book, voyage, "k", "s", "text")
+
+
+def test_rebuilding_the_caches_drops_kept_results(book, voyage):
+    derived.write_result(book, voyage, "k", derived.content_stamp(book, voyage), b"x")
+    book.rebuild_cache()
+    assert derived.read_result(book, voyage, "k") is None
+    assert book.verify().ok
