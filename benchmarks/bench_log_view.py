@@ -30,7 +30,7 @@ ROOT = Path(__file__).resolve().parent.parent
 sys.path.insert(0, str(ROOT))
 sys.path.insert(0, str(ROOT / "benchmarks"))
 
-from bench_tui import DAYS, T0, baseline, bench_logbook  # noqa: E402
+from bench_tui import DAYS, T0, baseline, bench_logbook, stall_probe  # noqa: E402
 
 
 def read_everything(path: Path) -> float:
@@ -53,13 +53,7 @@ async def run_app(path: Path) -> dict:
     app = PassagelogApp(session=Session(path, voyage="Bench voyage"), watch_poll_s=3600.0)
     longest = [0.0]
 
-    async def probe() -> None:
-        last = time.perf_counter()
-        while True:
-            await asyncio.sleep(0.01)
-            now = time.perf_counter()
-            longest[0] = max(longest[0], now - last - 0.01)
-            last = now
+    probe = lambda: stall_probe(longest)  # noqa: E731
 
     async with app.run_test(size=(100, 30)) as pilot:
         await pilot.pause()
