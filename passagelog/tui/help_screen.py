@@ -1,4 +1,11 @@
-"""The help screen: what each view is for, every key binding, and the safety caution."""
+"""The help screen: what each view is for, every key binding, and the safety caution.
+
+The key tables are made from the ``BINDINGS`` of the app and of each view (and of the
+widgets inside them that have keys of their own, such as the Log view's fix list), so a key
+added to a view shows in the help without anyone having to remember it. :data:`ACTION_TEXT`
+gives an action a longer wording than its footer label; an action it does not name is shown
+with the binding's own description.
+"""
 
 from __future__ import annotations
 
@@ -10,52 +17,151 @@ from textual.widgets import Markdown, Static
 
 from passagelog import CAUTION
 
-HELP_TEXT = """\
-**Views** (switch with the keys, or click the tabs)
+#: How a key is written in the help (Textual's key names on the left).
+KEY_NAMES = {
+    "question_mark": "?", "plus": "+", "minus": "-", "insert": "Ins", "delete": "Del",
+    "pageup": "PgUp", "pagedown": "PgDn", "escape": "Esc", "enter": "Enter", "tab": "Tab",
+    "home": "Home", "end": "End", "up": "Up", "down": "Down", "left": "Left",
+    "right": "Right", "space": "Space", "backspace": "Backspace",
+}
 
-| key | view | what it is for |
-| --- | --- | --- |
-| F2 | Plan | waypoints and legs of the voyage's plan; edit, then save a revision |
-| F3 | Log | enter a fix, see the fix list, correct a fix, add log entries |
-| F4 | Watch | the latest fix against the plan, live, with alerts |
-| F5 | Review | per-leg figures, passages, episodes, noon figures, plots |
+#: What each view is for (the F-key table), by the view's key.
+VIEW_TEXT = {
+    "plan": "waypoints and legs of the voyage's plan; edit, then save a revision",
+    "log": "enter a fix, page through the fix list, correct a fix, add log entries",
+    "watch": "the latest fix against the plan, live, with alerts",
+    "review": "per-leg figures, passages, episodes, noon figures, plots",
+}
 
-**Everywhere**
+#: Longer wording of an action, by (class name, action); the binding's description otherwise.
+ACTION_TEXT = {
+    ("PassagelogApp", "help"): "this help (Esc closes it)",
+    ("PassagelogApp", "toggle_dark"): "light / dark",
+    ("PassagelogApp", "quit"): "quit",
+    ("PlanView", "edit"): "edit the selected waypoint and the leg ending at it",
+    ("PlanView", "insert"): "insert a waypoint after the selected one",
+    ("PlanView", "delete"): "delete the selected waypoint",
+    ("PlanView", "move(-1)"): "move the selected waypoint up",
+    ("PlanView", "move(1)"): "move the selected waypoint down",
+    ("PlanView", "reverse"): "reverse the plan",
+    ("PlanView", "undo"): "undo the last edit",
+    ("PlanView", "times"): "to the fixed ETA / ETD fields of the selected waypoint (UTC)",
+    ("PlanView", "save"): "save the edits as a new revision (asks for a change note)",
+    ("LogView", "record"): "log the fix in the form (on the Entries tab: add the log entry)",
+    ("LogView", "goto_time"): "go to a time (UTC) in the fix list",
+    ("LogView", "switch_focus"): "move between the form and the list under it",
+    ("LogView", "page(-1)"): "the fix list a page up (also from the form's fields)",
+    ("LogView", "page(1)"): "the fix list a page down (also from the form's fields)",
+    ("FixTable", "select_cursor"):
+        "correct the selected fix (the original stays in the record, struck through)",
+    ("FixTable", "first"): "the first fixes of the voyage",
+    ("FixTable", "last"): "the latest fixes",
+    ("WatchView", "refresh_now"): "reconcile the latest fixes now",
+    ("ReviewView", "recompute"): "reconcile the whole voyage again",
+    ("CorrectionDialog", "cancel"): "cancel (nothing is written)",
+    ("GoToTimeDialog", "cancel"): "cancel (nothing is written)",
+    ("ChangeNoteDialog", "cancel"): "cancel (nothing is written)",
+}
 
-| key | action |
-| --- | --- |
-| F1 or ? | this help (Esc closes it) |
-| Ctrl+P | command palette: every action by name |
-| F9 | light / dark |
-| Ctrl+Q | quit |
-| Tab / Shift+Tab | next / previous field |
 
-**Plan** (in the waypoint table)
+def key_label(key: str) -> str:
+    """A Textual key name as the help writes it: ``ctrl+pageup`` -> ``Ctrl+PgUp``."""
+    *mods, last = key.split("+") if key != "plus" else ["plus"]
+    name = KEY_NAMES.get(last, last.upper() if len(last) <= 3 else last.capitalize())
+    return "+".join([m.capitalize() for m in mods] + [name])
 
-| key | action |
-| --- | --- |
-| Enter | edit the selected waypoint and the leg ending at it |
-| Ins or + | insert a waypoint after the selected one |
-| Del | delete the selected waypoint |
-| Ctrl+Up / Ctrl+Down | move the selected waypoint up / down |
-| Ctrl+R | reverse the plan |
-| Ctrl+Z | undo the last edit |
-| Ctrl+T | to the fixed ETA / ETD fields of the selected waypoint (UTC) |
-| Ctrl+S | save the edits as a new revision (asks for a change note) |
 
-Positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
-`47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in knots.
-Each row's leg settings describe the leg that **ends** at that waypoint.
+def binding_keys(binding) -> list[str]:
+    """The keys of a ``BINDINGS`` entry (a Binding or a tuple), as Textual names them."""
+    key = binding.key if isinstance(binding, Binding) else binding[0]
+    return [k.strip() for k in key.split(",") if k.strip()]
+
+
+def key_rows(cls, skip=lambda action: False) -> list[tuple[str, str]]:
+    """``(keys, action)`` rows for the bindings declared by ``cls`` itself, in order (but
+    those whose action ``skip`` refuses); the keys of one action on one row (``F1 or ?``)."""
+    rows: dict[str, list] = {}
+    for b in cls.__dict__.get("BINDINGS", ()):
+        b = b if isinstance(b, Binding) else Binding(*b)
+        if skip(b.action):
+            continue
+        entry = rows.setdefault(b.action, [[], b.description])
+        entry[0] += [key_label(k) for k in binding_keys(b)]
+    return [(" or ".join(keys), ACTION_TEXT.get((cls.__name__, action), desc or action))
+            for action, (keys, desc) in rows.items()]
+
+
+def sections() -> list[tuple[str, object]]:
+    """The classes whose bindings the help lists, with the heading of each."""
+    from passagelog.tui.app import PassagelogApp
+    from passagelog.tui.log_view import FixTable, LogView
+    from passagelog.tui.plan_view import PlanView
+    from passagelog.tui.review_view import ReviewView
+    from passagelog.tui.watch_view import WatchView
+
+    return [
+        ("Everywhere", PassagelogApp),
+        ("Plan (in the waypoint table)", PlanView),
+        ("Log (anywhere in the view)", LogView),
+        ("Log, in the fix list", FixTable),
+        ("Watch", WatchView),
+        ("Review", ReviewView),
+    ]
+
+
+def dialog_classes() -> list:
+    """The dialogs, whose keys the help lists together."""
+    from passagelog.tui.correction_dialog import CorrectionDialog
+    from passagelog.tui.goto_dialog import GoToTimeDialog
+    from passagelog.tui.note_dialog import ChangeNoteDialog
+
+    return [CorrectionDialog, GoToTimeDialog, ChangeNoteDialog]
+
+
+def _table(rows: list[tuple[str, str]], head: str = "| key | action |\n| --- | --- |") -> str:
+    return head + "\n" + "\n".join(f"| {k} | {a} |" for k, a in rows)
+
+
+def help_text() -> str:
+    """The help as Markdown: the views, then every view's keys, then how values are typed."""
+    from passagelog.tui.app import PassagelogApp, VIEWS
+
+    by_view = {}
+    for b in PassagelogApp.BINDINGS:
+        if b.action.startswith("view("):
+            by_view.setdefault(b.action[6:-2], []).append(key_label(b.key))
+    views = [(" or ".join(by_view.get(key, [])), title, VIEW_TEXT.get(key, ""))
+             for key, title, _f in VIEWS]
+    parts = ["**Views** (switch with the keys, or click the tabs)",
+             "| key | view | what it is for |\n| --- | --- | --- |\n"
+             + "\n".join(f"| {k} | {t} | {w} |" for k, t, w in views)]
+    for title, cls in sections():
+        # the app's view keys are in the table of views above
+        rows = key_rows(cls, skip=lambda action: action.startswith("view("))
+        if cls is PassagelogApp:
+            rows.insert(1, (key_label(PassagelogApp.COMMAND_PALETTE_BINDING),
+                            "command palette: every action by name"))
+            rows.append(("Tab / Shift+Tab", "next / previous field"))
+        parts += [f"**{title}**", _table(rows)]
+    dialogs = []
+    for cls in dialog_classes():
+        dialogs += [r for r in key_rows(cls) if r not in dialogs]
+    parts += ["**In a dialog**", _table(dialogs), NOTES]
+    return "\n\n".join(parts) + "\n"
+
+
+NOTES = """\
+**Plan**: positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
+`47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in
+knots. Each row's leg settings describe the leg that **ends** at that waypoint.
 Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z` or
-`03 08:00Z`; empty for none. Row 1's ETD is the planned departure; legs after a fixed ETD
-start from it; Req kn is the speed that makes a fixed ETA from the last fixed time.
+`03 08:00Z`; empty for none. Row 1's ETD is the planned departure; legs after a fixed ETD start
+from it; Req kn is the speed that makes a fixed ETA from the last fixed time.
 
-**Log**: Ctrl+S logs the fix in the form (on the Entries tab: adds the log entry); in the
-fix list, Enter opens the correction dialog (the original stays in the record, struck
-through). Times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
-`2026-05-02T12:50 ZD-1`.
+**Log**: fix times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
+`2026-05-02T12:50 ZD-1`. The fix list is in time order, the latest at the bottom.
 
-**Watch**: follows new fixes by itself. **Review**: Ctrl+L recomputes.
+**Watch** follows new fixes by itself.
 """
 
 
@@ -71,7 +177,7 @@ class HelpScreen(ModalScreen[None]):
             yield Static("Help (Esc, q or F1 closes it; arrows or PgUp/PgDn scroll)",
                          id="help-title")
             yield Static(f"CAUTION  {CAUTION}", id="help-caution")
-            yield Markdown(HELP_TEXT, id="help-text")
+            yield Markdown(help_text(), id="help-text")
 
     def action_dismiss(self) -> None:  # type: ignore[override]
         self.dismiss(None)
