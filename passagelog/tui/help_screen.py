@@ -155,8 +155,9 @@ NOTES = """\
 `47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in
 knots. Each row's leg settings describe the leg that **ends** at that waypoint.
 Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z` or
-`03 08:00Z`; empty for none. Row 1's ETD is the planned departure; legs after a fixed ETD start
-from it; Req kn is the speed that makes a fixed ETA from the last fixed time.
+`03 08:00Z`; empty for none. Row 1's ETD is the planned departure (it has no ETA); the last
+waypoint, the destination, has no ETD; legs after a fixed ETD start from it; Req kn is the
+speed that makes a fixed ETA from the last fixed time.
 
 **Log**: fix times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
 `2026-05-02T12:50 ZD-1`. The fix list is in time order, the latest at the bottom.

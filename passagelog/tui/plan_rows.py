@@ -19,7 +19,10 @@ from passagelog.nav.units import NM_M, travel_seconds
 
 @dataclass
 class PlanRow:
-    """One waypoint and the leg that ends at it (row 0's leg fields are unused)."""
+    """One waypoint and the leg that ends at it (row 0's leg fields are unused). Row 0 has
+    no ETA (the voyage starts there: its ETD is the planned departure) and the last row no
+    ETD (the voyage ends there: nothing departs from it); :func:`end_times_dropped` keeps
+    it so as rows are deleted and moved."""
 
     name: str
     lat: float
@@ -74,6 +77,7 @@ def main_schedule_name(route: Route) -> str:
 def rows_from_route(route: Route) -> list[PlanRow]:
     rows: list[PlanRow] = []
     main = main_schedule_name(route)
+    last = len(route.waypoints) - 1
     for i, wp in enumerate(route.waypoints):
         leg = route.legs[i - 1] if i > 0 else LegPlan()
         eta = etd = None
@@ -88,7 +92,8 @@ def rows_from_route(route: Route) -> list[PlanRow]:
                 etd = item.etd_utc if item.etd_utc is not None else etd
             # calculated items of the main schedule are worked out again by compute()
         rows.append(PlanRow(
-            eta_utc=eta if i > 0 else None, etd_utc=etd, other_times=tuple(other),
+            eta_utc=eta if i > 0 else None, etd_utc=etd if i < last else None,
+            other_times=tuple(other),
             name=wp.name, lat=wp.lat, lon=wp.lon, sailing=leg.sailing, speed_kn=leg.speed_kn,
             xtl_port_m=leg.xtl_port_m, xtl_stbd_m=leg.xtl_stbd_m,
             turn_radius_m=leg.turn_radius_m, arrival_radius_m=wp.arrival_radius_m,
@@ -111,6 +116,7 @@ def route_from_rows(name: str, rows: list[PlanRow], *, base: Route | None = None
     from the voyage's planned departure at the planned speeds, the same figures).
     ``departure_utc``: the voyage's planned departure (used where row 1 has no fixed ETD).
     """
+    rows = end_times_dropped(rows)
     check_schedule(rows, departure_utc)
     waypoints = []
     legs = []
@@ -150,6 +156,17 @@ def route_from_rows(name: str, rows: list[PlanRow], *, base: Route | None = None
 
 # --- editing operations (each returns a new list; the caller keeps the undo history) ---
 
+def end_times_dropped(rows: list[PlanRow]) -> list[PlanRow]:
+    """``rows`` without the times that mean nothing at the ends of the route: an ETA at
+    the first waypoint (the departure point) and an ETD at the last (the destination)."""
+    out = list(rows)
+    if out and out[0].eta_utc is not None:
+        out[0] = replace(out[0], eta_utc=None)
+    if len(out) > 1 and out[-1].etd_utc is not None:
+        out[-1] = replace(out[-1], etd_utc=None)
+    return out
+
+
 def insert_after(rows: list[PlanRow], index: int) -> list[PlanRow]:
     """A new waypoint after row ``index``: halfway along the next leg, or a copy of the last
     leg's step beyond the end. Its leg takes the settings of the leg it splits."""
@@ -177,7 +194,7 @@ def delete(rows: list[PlanRow], index: int) -> list[PlanRow]:
         raise InputError(f"a plan needs at least 2 waypoints; cannot delete {rows[index].name!r}")
     out = list(rows)
     del out[index]
-    return out
+    return end_times_dropped(out)  # a new first or last waypoint keeps only its own end
 
 
 def move(rows: list[PlanRow], index: int, step: int) -> list[PlanRow]:
@@ -194,10 +211,8 @@ def move(rows: list[PlanRow], index: int, step: int) -> list[PlanRow]:
     out[j] = replace(b, name=a.name, lat=a.lat, lon=a.lon,
                      arrival_radius_m=a.arrival_radius_m, waypoint_extras=a.waypoint_extras,
                      eta_utc=a.eta_utc, etd_utc=a.etd_utc, other_times=a.other_times)
-    for k in (index, j):  # no arrival time at the departure point
-        if k == 0 and out[k].eta_utc is not None:
-            out[k] = replace(out[k], eta_utc=None)
-    return out
+    # no arrival time at the departure point, no departure time at the destination
+    return end_times_dropped(out)
 
 
 def reverse(rows: list[PlanRow]) -> list[PlanRow]:
@@ -323,10 +338,11 @@ def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigu
                         f"{rows[anchor[2]].name} ({_hm(anchor[0])})")
             if eta is None and t is not None and not problem:
                 problem = "no planned speed: later ETAs unknown"
-        etd = row.etd_utc if row.etd_utc is not None else (eta if i > 0 else t)
-        if (i > 0 and row.etd_utc is not None and eta is not None and row.etd_utc < eta
+        fixed_etd = row.etd_utc if i == 0 or i < n - 1 else None  # none at the destination
+        etd = fixed_etd if fixed_etd is not None else (eta if i > 0 else t)
+        if (i > 0 and fixed_etd is not None and eta is not None and fixed_etd < eta
                 and not problem):
-            problem = f"fixed ETD {_hm(row.etd_utc)} is before the ETA {_hm(eta)}"
+            problem = f"fixed ETD {_hm(fixed_etd)} is before the ETA {_hm(eta)}"
         out.append(RowFigures(
             distance_m=r.get("distance_m"), gc_distance_m=r.get("gc_distance_m"),
             rhumb_distance_m=r.get("rhumb_distance_m"), initial_course=r.get("initial_course"),
@@ -336,7 +352,7 @@ def compute(rows: list[PlanRow], departure_utc: datetime | None) -> list[RowFigu
             alteration_deg=alteration, wheel_over_m=wo, problem=problem,
         ))
         t = etd
-        if i > 0 and (row.eta_utc is not None or row.etd_utc is not None) and etd is not None:
+        if i > 0 and (row.eta_utc is not None or fixed_etd is not None) and etd is not None:
             anchor = (etd, cum, i)
     return out
 

@@ -160,7 +160,7 @@ class PlanView(Vertical):
                 fmt.duration(fig.leg_time_s) if leg else "",
                 _fixed(fig.eta_utc, row.eta_utc) if leg else "",
                 (_fixed(fig.etd_utc, row.etd_utc)
-                 if i == 0 or row.etd_utc is not None else ""),
+                 if i == 0 or (row.etd_utc is not None and i < len(self.rows) - 1) else ""),
                 fmt.ship_time(fig.eta_utc if leg else fig.etd_utc, zd),
                 (f"{fig.alteration_deg:+.0f}°" if fig.alteration_deg is not None else ""),
                 fmt.nm(fig.wheel_over_m, 2) if fig.wheel_over_m is not None else "",
@@ -229,7 +229,9 @@ class PlanView(Vertical):
             for fid in leg_fields:
                 self.query_one(f"#plan-{fid}", Input).disabled = i == 0
             self.query_one("#plan-sailing", Select).disabled = i == 0
+            # no ETA at the departure point, no ETD at the destination (blank, not editable)
             self.query_one("#plan-eta", Input).disabled = i == 0
+            self.query_one("#plan-etd", Input).disabled = i == len(self.rows) - 1 and i > 0
             message = self.query_one("#plan-message", Static)
             message.remove_class("-bad")
             message.update(self.row_message(i))
@@ -243,6 +245,9 @@ class PlanView(Vertical):
         if i == 0:
             text = ("Row 1 is the departure point: its fixed ETD is the planned departure; "
                     "leg settings start at row 2. \u2190/\u2192 scroll the table.")
+        elif i == len(self.rows) - 1:
+            text = (f"Editing row {i + 1}: {row.name}, the destination (no ETD: nothing "
+                    "departs from it), and the leg ending at it.")
         else:
             text = f"Editing row {i + 1}: {row.name} and the leg ending at it."
         if fig is not None and fig.problem:
@@ -335,8 +340,8 @@ class PlanView(Vertical):
             ref = fig.planned_arrival_utc or fig.eta_utc or fig.etd_utc
         ref = ref or (self.figures[0].etd_utc if self.figures else None)
         for fid, what in (("eta", "fixed ETA"), ("etd", "fixed ETD")):
-            if fid == "eta" and i == 0:
-                continue
+            if (fid == "eta" and i == 0) or (fid == "etd" and i == len(self.rows) - 1 > 0):
+                continue  # no ETA at the departure point, no ETD at the destination
             value, ok = take(fid, lambda t, w=what: pr.parse_schedule_time(t, ref, w))
             if ok:
                 setattr(new, f"{fid}_utc", value)

@@ -230,3 +230,65 @@ async def test_schedule_edited_saved_reopened_and_reviewed(session):
         run_m = 10.0 * 1852.0 * h
         want = h * 3600.0 - run_m / (12.0 * 1852.0 / 3600.0)
         assert got == pytest.approx(want, abs=2.0), h
+
+
+def test_no_etd_at_the_destination_and_no_eta_at_the_departure_point():
+    """Nothing departs from the last waypoint and nothing arrives at the first: a time
+    there is dropped when a plan is read, ignored by the figures, not saved, and dropped
+    when a delete or a move makes a waypoint the first or the last (issue 6)."""
+    from dataclasses import replace
+
+    from passagelog.model import ScheduleItem
+
+    t = datetime(2026, 5, 6, 12, 0, tzinfo=UTC)
+    route = replace(sample_route(), schedule=[
+        ScheduleItem(0, t - timedelta(days=5), DEP, "manual", ""),
+        ScheduleItem(3, t, t + timedelta(hours=2), "manual", "")])
+    rows = pr.rows_from_route(route)
+    assert [(r.eta_utc, r.etd_utc) for r in (rows[0], rows[3])] == [(None, DEP), (t, None)]
+    # an ETD put on the last row all the same changes no figure and is not saved
+    plain = pr.compute(rows, DEP)
+    rows[3].etd_utc = t - timedelta(hours=1)  # before its ETA: no complaint either
+    figs = pr.compute(rows, DEP)
+    assert figs == plain and figs[3].problem == ""
+    saved = pr.route_from_rows(route.name, rows, base=route, departure_utc=DEP)
+    assert [s.etd_utc for s in saved.schedule if s.waypoint_index == 3] == [None]
+    # a stay at Mid (ETA and ETD): Mid becomes the destination when Ponta is deleted
+    rows = pr.rows_from_route(sample_route())
+    rows[2].eta_utc, rows[2].etd_utc = t - timedelta(days=1), t
+    left = pr.delete(rows, 3)
+    assert (left[2].eta_utc, left[2].etd_utc) == (t - timedelta(days=1), None)
+    moved = pr.move(rows, 2, 1)  # Mid moved to the end
+    assert moved[3].name == "Mid" and moved[3].etd_utc is None
+    assert moved[3].eta_utc == t - timedelta(days=1)
+    # and Ushant W, with an ETA, becomes the departure point when Start is deleted
+    rows[1].eta_utc = t - timedelta(days=3)
+    assert pr.delete(rows, 0)[0].eta_utc is None
+    assert rows[2].etd_utc == t and rows[1].eta_utc is not None  # the input is not changed
+
+
+async def test_the_end_times_are_blank_and_not_editable(session):
+    """Pilot: at row 1 the ETA field and at the last row the ETD field are disabled and
+    empty; in the table the last row shows no ETD; Ctrl+T at the last row goes to its ETA."""
+    from passagelog.tui.app import PassagelogApp
+
+    app = PassagelogApp(session=session, watch_poll_s=3600.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        table = app.query_one("#plan-table")
+        for _ in range(50):
+            await pilot.pause(0.02)
+            if app.focused is table:
+                break
+        eta, etd = app.query_one("#plan-eta"), app.query_one("#plan-etd")
+        assert eta.disabled and not etd.disabled and eta.value == ""
+        table.move_cursor(row=3)
+        await pilot.pause()
+        assert etd.disabled and not eta.disabled and etd.value == ""
+        assert table.get_cell("3", "etd") == ""
+        assert "the destination (no ETD" in str(app.query_one("#plan-message").render())
+        table.focus()
+        await pilot.press("ctrl+t")
+        assert app.focused is eta
+        table.move_cursor(row=2)
+        await pilot.pause()
+        assert not etd.disabled and not eta.disabled
