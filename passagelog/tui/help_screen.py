@@ -55,7 +55,7 @@ ACTION_TEXT = {
     ("FixTable", "select_cursor"):
         "correct the selected fix (the original stays in the record, struck through)",
     ("FixTable", "first"): "the first fixes of the voyage",
-    ("FixTable", "last"): "the latest fixes",
+    ("FixTable", "last"): "the latest fixes (the list then follows new ones)",
     ("WatchView", "refresh_now"): "reconcile the latest fixes now",
     ("ReviewView", "recompute"): "reconcile the whole voyage again",
     ("CorrectionDialog", "cancel"): "cancel (nothing is written)",
@@ -160,7 +160,9 @@ waypoint, the destination, has no ETD; legs after a fixed ETD start from it; Req
 speed that makes a fixed ETA from the last fixed time.
 
 **Log**: fix times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
-`2026-05-02T12:50 ZD-1`. The fix list is in time order, the latest at the bottom.
+`2026-05-02T12:50 ZD-1`. The fix list is in time order, the latest at the bottom; while the
+latest fix is on screen the list follows new ones (from the feed or another terminal) as
+they are logged, and the cursor stays on its fix.
 
 **Watch** follows new fixes by itself.
 """

@@ -14,6 +14,14 @@ bottom), but holds only the rows on show plus a margin each side (:func:`window_
 PageUp/PageDown, the arrows, Home/End and Ctrl+G (go to a time in UTC) read the next rows
 with keyset queries, so a list of a million fixes opens as fast as one of ten. The header
 above it says which records are on show ("Fixes 981–1,000 of 1,000, oldest first").
+
+The list follows fixes written by another connection (``passagelog feed``, another
+terminal) as the Watch view does: it polls the logbook's change counter
+(:meth:`~passagelog.tui.session.Session.change_counter`) every ``watch_poll_s`` and, when it
+changed, reads the tail of the list again, but only while the latest record is on screen:
+the new fixes scroll in at the bottom and the cursor stays on its fix (on the latest fix it
+goes on to the new latest). A user paging elsewhere keeps the list as it is; only the count
+in the header grows.
 """
 from __future__ import annotations
 
@@ -218,6 +226,12 @@ class LogView(Vertical):
         #: the ship's zone now (the voyage's, changed by the clock changes logged): times
         #: typed without a zone are taken as ship's time in it
         self.zone_now: int = session.zd_minutes
+        #: the logbook's change counter when the list was last read (None: not yet)
+        self._counter: object = None
+        #: bumped each time a new window is put in the list (a late read is dropped)
+        self._window = 0
+        #: how many times new fixes from elsewhere were taken into the list
+        self.follows = 0
 
     def compose(self) -> ComposeResult:
         with TabbedContent(id="log-tabs"):
@@ -265,6 +279,7 @@ class LogView(Vertical):
         for label in ("#", "Time UTC", "Ship", "Kind", "Text"):
             entries.add_column(label, key=label)
         self.validate_fix_form()
+        self.set_interval(getattr(self.app, "watch_poll_s", 0.5), self._poll)
 
     def on_resize(self) -> None:
         self.update_head()
@@ -291,6 +306,7 @@ class LogView(Vertical):
              when: datetime | None = None, entries: bool = False) -> None:
         """Read a window of the fix list in a worker: the ``first`` or ``last`` records,
         those ``around`` record ``fix_id`` or ``from`` time ``when``."""
+        self._mark_counter()
         # the page is measured here: widget geometry is not to be read in a worker thread
         self._load(self._page(), where, fix_id, when, entries)
 
@@ -347,6 +363,70 @@ class LogView(Vertical):
             self.app.call_from_thread(self._fill_entries, entry_rows)
         if note:
             self.app.call_from_thread(self.notify, note)
+
+    # --- following fixes written elsewhere (the Watch view's poll of the change counter) ---
+    def _mark_counter(self) -> bool:
+        """Note the logbook's change counter; True when it changed since last noted."""
+        if self.session.voyage is None:
+            return False
+        try:
+            counter = self.session.change_counter()
+        except PassagelogError:
+            return False  # the next poll tries again; a read shows the error
+        changed, self._counter = counter != self._counter, counter
+        return changed
+
+    def _poll(self) -> None:
+        if self.loaded and self._mark_counter():
+            self._follow(self._page(), self._window)
+
+    def at_latest(self) -> bool:
+        """Whether the latest record of the voyage is on screen (then the list follows
+        new fixes)."""
+        if not self.rows:
+            return True
+        table = self.query_one("#fix-table", FixTable)
+        held_end = self.first_place + len(self.rows) >= self.total
+        return held_end and int(table.scroll_y) + table.page_rows() >= len(self.rows)
+
+    @work(thread=True, exclusive=True, group="log-follow")
+    def _follow(self, page: int, window: int) -> None:
+        """Read the tail of the list (the window a load of the ``last`` records reads)."""
+        s = self.session
+        try:
+            total = s.fix_record_count()
+            rows = s.fix_records_before(None, limit=window_rows(page))
+            corrected = s.corrections_of([f.fix_id for f in rows])
+        except PassagelogError:
+            return  # the next change tries again
+        self.app.call_from_thread(self._followed, rows, total, corrected, window)
+
+    def _followed(self, rows: list[Fix], total: int, corrected: dict[int, int],
+                  window: int) -> None:
+        """Put the tail read by :meth:`_follow` in the list if the user is still at the
+        latest record; else only the count in the header grows."""
+        if window != self._window:
+            return  # the list was read again meanwhile
+        if not self.at_latest():
+            self.total = max(total, self.first_place + len(self.rows))
+            self.update_head()
+            return
+        if ([f.fix_id for f in rows] == [f.fix_id for f in self.rows]
+                and corrected == self.corrected_by and total == self.total):
+            return  # something else changed (an entry, a kept review)
+        cursor, top = len(rows) - 1, None
+        if self.rows:
+            table = self.query_one("#fix-table", FixTable)
+            here = min(table.cursor_row, len(self.rows) - 1)
+            ids = [f.fix_id for f in rows]
+            if here < len(self.rows) - 1 and self.rows[here].fix_id in ids:
+                # the cursor stays on its fix; the list scrolls to keep the latest fix at
+                # the bottom, as far as the cursor's fix stays on screen
+                cursor = ids.index(self.rows[here].fix_id)
+                line = here - int(table.scroll_y)
+                top = max(0, min(cursor, max(cursor - line, len(rows) - table.page_rows())))
+        self.follows += 1
+        self._show_window(rows, total - len(rows), total, corrected, cursor, top)
 
     def move_by(self, delta: int) -> None:
         """Move the cursor ``delta`` rows (negative: up; a page keeps the cursor on its line
@@ -408,6 +488,7 @@ class LogView(Vertical):
         the top of the list when given)."""
         table = self.query_one("#fix-table", FixTable)
         table.clear()
+        self._window += 1
         self.rows, self.first_place, self.total = rows, place, total
         self.corrected_by = corrected
         for f in rows:

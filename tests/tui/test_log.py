@@ -379,3 +379,76 @@ async def test_a_suspect_fix_is_marked(session):
         cells = table.get_row_at(1)
         assert "SUSPECT 360 kn" in " ".join(str(c) for c in cells)
         assert cells[0].style == "bold"
+
+
+async def _until(pilot, app, condition, seconds: float = 10.0) -> None:
+    """Wait for ``condition()`` (the poll and its worker run on their own time)."""
+    for _ in range(int(seconds / 0.02)):
+        if condition():
+            break
+        await pilot.pause(0.02)
+    await _settle(pilot, app)
+    assert condition()
+
+
+async def test_the_fix_list_follows_fixes_written_by_another_connection(session, logbook_path,
+                                                                       monkeypatch):
+    """At the latest record the list takes in a fix another connection (the feed, another
+    terminal) writes, without a reload; a user paging elsewhere keeps the list and the
+    selection, and only the count grows (issue 6)."""
+    from passagelog.store import Logbook
+
+    times = _many_fixes(session, 100)
+    _no_whole_voyage(monkeypatch, session)
+    vid = session.voyage.voyage_id
+    feed = Logbook.open(logbook_path)  # a second connection, as `passagelog feed` writes
+    app = PassagelogApp(session=session, watch_poll_s=0.1)
+    try:
+        async with app.run_test(size=(100, 30)) as pilot:
+            log = await _open_log(pilot, app)
+            table = app.query_one("#fix-table")
+            table.focus()
+            page = table.page_rows()
+            assert log.shown[-1].time_utc == times[-1] and table.cursor_row == len(log.shown) - 1
+            # 1. at the latest fix: the new one is listed and the cursor goes on to it
+            new = feed.add_fix(vid, Fix(times[-1] + timedelta(minutes=10), 49.02, -6.0))
+            await _until(pilot, app, lambda: log.shown and log.shown[-1].fix_id == new.fix_id)
+            assert log.shown[table.cursor_row].fix_id == new.fix_id and log.total == 101
+            assert _head(app).startswith(f"Fixes {101 - page + 1:,}–101 of 101")
+            # 2. paging elsewhere: the list and the selection stay, the count grows
+            for _ in range(3):
+                await pilot.press("pageup")
+            await pilot.pause()
+            here = log.shown[table.cursor_row].fix_id
+            held = [f.fix_id for f in log.rows]
+            first, follows = log.first_place, log.follows
+            later = feed.add_fix(vid, Fix(times[-1] + timedelta(minutes=20), 49.03, -6.0))
+            await _until(pilot, app, lambda: log.total == 102)
+            assert log.follows == follows and [f.fix_id for f in log.rows] == held
+            assert log.shown[table.cursor_row].fix_id == here and log.first_place == first
+            assert " of 102" in _head(app)
+            # ... and PageDown walks on to the new fixes
+            for _ in range(5):
+                await pilot.press("pagedown")
+            await pilot.pause()
+            assert log.rows[table.cursor_row].fix_id == later.fix_id
+            # 3. the latest page on screen, the cursor a row above the latest: the new fix
+            # is listed, the cursor stays on its fix
+            await pilot.press("end")
+            await _settle(pilot, app)
+            await pilot.press("up")
+            await pilot.pause()
+            here = log.rows[table.cursor_row].fix_id
+            assert here == new.fix_id
+            third = feed.add_fix(vid, Fix(times[-1] + timedelta(minutes=30), 49.04, -6.0))
+            await _until(pilot, app, lambda: log.shown and log.shown[-1].fix_id == third.fix_id)
+            assert log.shown[table.cursor_row].fix_id == here
+            assert int(table.scroll_y) + page == len(log.shown)  # the new fix on screen
+            # 4. a correction written elsewhere marks the original in the list
+            fixed = feed.correct_fix(vid, third.fix_id, Fix(third.time_utc, 49.041, -6.0),
+                                     "misread")
+            await _until(pilot, app, lambda: log.corrected_by.get(third.fix_id)
+                         == fixed.fix_id and log.shown[-1].fix_id == fixed.fix_id)
+            assert log.shown[table.cursor_row].fix_id == here
+    finally:
+        feed.close()
