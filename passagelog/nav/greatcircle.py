@@ -450,11 +450,13 @@ class GreatCircleLeg:
         dsig = math.atan2(math.sqrt(1.0 - cd * cd) * math.cos(theta), cd)
         return dsig * self._b * math.sqrt(1.0 + self._k2 * math.sin(sig) ** 2), dr
 
-    def offsets_np(self, lats, lons):
+    def offsets_np(self, lats, lons, strict: bool = True):
         """Cross-track and along-track distances of many positions: ``(xte_m, along_m)``
         float64 arrays of the broadcast shape. XTE is + to the right of the direction of
         travel. Raises InputError for a bad position, GeometryError where a foot is not
-        defined (a position at the pole of the leg's great circle) or does not converge."""
+        defined (a position at the pole of the leg's great circle) or does not converge;
+        with ``strict=False`` such a position gets NaN for both and the rest their
+        figures."""
         lats, lons = check_points_np("position", lats, lons)
         shape = lats.shape
         lat = lats.ravel()
@@ -467,9 +469,17 @@ class GreatCircleLeg:
         sig, u, v = self._first_foot(lat, lon)
         at_pole = np.hypot(u, v) < POLE_TOLERANCE_RAD
         if at_pole.any():
-            i = int(np.flatnonzero(at_pole)[0])
-            raise GeometryError(self._pole_message(lat[i], lon[i], i))
-        xte, sig = self._feet_np(lat, lon, sig, u, v)
+            if strict:
+                i = int(np.flatnonzero(at_pole)[0])
+                raise GeometryError(self._pole_message(lat[i], lon[i], i))
+            xte.fill(np.nan)
+            along.fill(np.nan)
+            keep = np.flatnonzero(~at_pole)
+            if keep.size:
+                x_k, a_k = self.offsets_np(lat[keep], lon[keep], strict=False)
+                xte[keep], along[keep] = x_k, a_k
+            return xte.reshape(shape), along.reshape(shape)
+        xte, sig = self._feet_np(lat, lon, sig, u, v, strict=strict)
         # near half a turn from the middle: the candidate foot one turn the other way round
         # may be the nearer one along the line (module docstring)
         half = 0.5 * math.radians(self.arc_deg)

@@ -41,7 +41,7 @@ class Leg(Protocol):
 
     def offset(self, lat: float, lon: float) -> tuple[float, float]: ...
 
-    def offsets_np(self, lats, lons): ...
+    def offsets_np(self, lats, lons, strict: bool = True): ...
 
 
 @dataclass(frozen=True)
@@ -111,8 +111,8 @@ class _RhumbAdapter:
     def offset(self, lat, lon):
         return self._inner.offset(lat, lon)
 
-    def offsets_np(self, lats, lons):
-        return self._inner.offsets_np(lats, lons)
+    def offsets_np(self, lats, lons, strict=True):
+        return self._inner.offsets_np(lats, lons, strict)
 
 
 def make_leg(lat1: float, lon1: float, lat2: float, lon2: float,

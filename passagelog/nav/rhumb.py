@@ -758,13 +758,14 @@ class RhumbLeg:
             s = min(max(s + step, self._s_min), self._s_max)
         raise self._no_foot(0, plat, plon, 1)
 
-    def offsets_np(self, lats, lons) -> tuple[np.ndarray, np.ndarray]:
+    def offsets_np(self, lats, lons, strict: bool = True) -> tuple[np.ndarray, np.ndarray]:
         """Batch :meth:`offset` over broadcast arrays: ``(xte_m, along_m)`` float64 arrays.
 
         Raises :class:`GeometryError` (naming the first such position) if the foot of a
         position cannot be found: positions thousands of kilometres from the line, or
         hundreds near a pole, where the extended line spirals toward the pole and the
-        distance to it has several minima. Never returns NaN.
+        distance to it has several minima. Never returns NaN, except with ``strict=False``,
+        where such a position gets NaN for both and the rest their figures.
         """
         lats, lons = _arrays(lats, lons)
         _check_lat("lat", lats)
@@ -776,6 +777,12 @@ class RhumbLeg:
             s = self._initial_along(_NP, plat, plon)
             xte, along, bad = self._newton(plat, plon, np.array(s, dtype=np.float64, ndmin=1))
         if bad.size:
+            if not strict:
+                xte = np.array(xte, dtype=np.float64, ndmin=1)
+                along = np.array(along, dtype=np.float64, ndmin=1)
+                xte[bad] = np.nan
+                along[bad] = np.nan
+                return xte.reshape(shape), along.reshape(shape)
             i = int(bad[0])
             raise self._no_foot(i, float(plat[i]), float(plon[i]), bad.size)
         return xte.reshape(shape), along.reshape(shape)

@@ -98,6 +98,14 @@ DEFAULT_SKIP_M = 1852.0
 CHUNK_MIN, CHUNK_START, CHUNK_MAX = 64, 1024, 131072
 
 
+class _NoFoot(Exception):
+    """Internal: these fixes have no cross-track foot on the leg they fell on."""
+
+    def __init__(self, fixes: np.ndarray) -> None:
+        super().__init__(f"{fixes.size} fix(es) with no cross-track foot")
+        self.fixes = fixes
+
+
 def _make_leg(lat1, lon1, lat2, lon2, sailing, earth):
     from passagelog.nav.legs import make_leg
 
@@ -486,25 +494,39 @@ def _reconcile_fixes(*, plans, revisions, clocks, entries, earth, raw, valid, or
                 while last > i and suspect[last]:
                     last -= 1
             i = nxt
-    good = ~suspect | include_suspect
+    no_foot = np.zeros(n, dtype=bool)
+    while True:
+        good = (~suspect | include_suspect) & ~no_foot
 
-    # set and drift need only the fixes and the previous good fix of each: start them now
-    # in a second thread (numpy lets go of the GIL), while the state machine runs
-    prev = _prev_index(good)
-    has_prev = (prev >= 0) & (np.arange(n) >= d0)
-    pp0 = np.maximum(prev, 0)
-    cur_ok = (has_prev & good & np.isfinite(f.heading[pp0]) & np.isfinite(f.stw_kn[pp0])
-              & (t - t[pp0] > 0) & (t - t[pp0] <= gap_s))
-    currents = None
-    if cur_ok.any():
-        currents = pool.submit(_dr_currents, lat, lon, t, f.heading, f.stw_kn, prev, cur_ok,
-                               earth, step_d, step_az)
-    return _reconcile_rest(**locals())
+        # set and drift need only the fixes and the previous good fix of each: start them
+        # now in a second thread (numpy lets go of the GIL), while the state machine runs
+        prev = _prev_index(good)
+        has_prev = (prev >= 0) & (np.arange(n) >= d0)
+        pp0 = np.maximum(prev, 0)
+        cur_ok = (has_prev & good & np.isfinite(f.heading[pp0]) & np.isfinite(f.stw_kn[pp0])
+                  & (t - t[pp0] > 0) & (t - t[pp0] <= gap_s))
+        currents = None
+        if cur_ok.any():
+            currents = pool.submit(_dr_currents, lat, lon, t, f.heading, f.stw_kn, prev,
+                                   cur_ok, earth, step_d, step_az)
+        try:
+            return _reconcile_rest(**locals())
+        except _NoFoot as found:
+            # a fix with no cross-track foot on the leg it fell on (at the pole of a
+            # great-circle leg, or too far from a rhumb line): set aside as a suspect fix
+            # and the voyage reconciled again without it (rare: a wild position)
+            if currents is not None:
+                currents.cancel()
+            if reason.dtype != object:
+                reason = reason.astype(object)
+            no_foot[found.fixes] = True
+            suspect[found.fixes] = True
+            reason[found.fixes] = "no-foot"
 
 
 def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, order, f, n, t,
                     lat, lon, d0, detail_s, suspect, reason, implied, step_d, step_az, good,
-                    prev, has_prev, currents, pool, departure_utc, planned_departure_utc,
+                    prev, has_prev, currents, pool, no_foot, departure_utc, planned_departure_utc,
                     arrival_utc, window_s, gap_s, include_suspect, max_speed_kn, schedule,
                     **_unused) -> Review:
     """The rest of :func:`reconcile`, once the fixes are in order and the suspects known."""
@@ -626,11 +648,19 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
             a = max(a, d0)
             leg = plans[int(rev_of[a])].legs[int(leg0[a])]
             if m % 2:
-                pending.append((a, b, pool.submit(leg.offsets_np, lat[a:b], lon[a:b])))
+                pending.append((a, b, pool.submit(leg.offsets_np, lat[a:b], lon[a:b],
+                                                  False)))
             else:
-                xte[a:b], along[a:b] = leg.offsets_np(lat[a:b], lon[a:b])
+                xte[a:b], along[a:b] = leg.offsets_np(lat[a:b], lon[a:b], False)
         for a, b, job in pending:
             xte[a:b], along[a:b] = job.result()
+        # a fix with no cross-track foot on its leg (at the pole of a great-circle leg, or
+        # too far from a rhumb line for its foot): set aside as suspect, named in the review
+        found = ~np.isfinite(xte) & ~no_foot
+        found[:d0] = False
+        if found.any():
+            made_good.cancel()
+            raise _NoFoot(np.flatnonzero(found))
     length = np.zeros(n)
     cum_start = np.zeros(n)
     total = np.zeros(n)

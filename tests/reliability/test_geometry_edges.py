@@ -370,13 +370,31 @@ def test_review_across_the_antimeridian_is_finite():
     assert xte[1] < 0 and math.isclose(xte[1], x_ref, abs_tol=1e-4)
 
 
-def test_review_with_a_fix_at_the_pole_of_a_leg_is_an_error_naming_the_position():
+def test_review_sets_a_fix_at_the_pole_of_a_leg_aside_and_names_it():
+    # the pole of the meridian leg 90E is (0, 0): every point of the line is 90 degrees
+    # away, so the fix has no cross-track foot; the rest of the voyage is still reviewed
     meridian = Route("m", (Waypoint("A", -10.0, 90.0), Waypoint("B", 10.0, 90.0)),
                      (LegPlan("great-circle", 10.0),))
-    try:
-        rv = reconcile(meridian, [Fix(T0, 0.0, 0.0), Fix(T0 + timedelta(hours=1), 0.0, 90.0)],
-                       departure_utc=T0)
-    except GeometryError as exc:
-        assert "pole" in str(exc) and "\n" not in str(exc)
-    else:  # a later engine may set such a fix aside: then its figures must still be finite
-        _all_finite_or_none(rv.rows("legs"))
+    fixes = [Fix(T0, -10.0, 90.01), Fix(T0 + timedelta(hours=1), 0.0, 0.0),
+             Fix(T0 + timedelta(hours=2), -9.5, 90.0)]
+    rv = reconcile(meridian, fixes, departure_utc=T0)
+    (sus,) = rv.suspects
+    assert (sus.fix, sus.reason, sus.lat, sus.lon) == (1, "no-foot", 0.0, 0.0)
+    assert sus.time_s == (T0 + timedelta(hours=1)).timestamp()
+    xte = np.asarray(rv.fixes.xte_m)
+    assert math.isnan(xte[1]) and np.isfinite(xte[[0, 2]]).all()
+    (leg,) = rv.rows("legs")
+    assert leg["fixes"] == 2 and leg["max_abs_xte_m"] is not None
+    # the set-aside fix does not pass the waypoint nor count in made good
+    assert not rv.passages
+    _all_finite_or_none(rv.rows("legs"))
+
+
+def test_offsets_np_not_strict_gives_nan_only_where_there_is_no_foot():
+    lg = make_leg(-10.0, 90.0, 10.0, 90.0, "great-circle")
+    with pytest.raises(GeometryError, match="pole"):
+        lg.offsets_np([0.0, 1.0], [0.0, 90.5])
+    xte, along = lg.offsets_np([0.0, 1.0], [0.0, 90.5], strict=False)
+    assert math.isnan(xte[0]) and math.isnan(along[0])
+    x1, a1 = lg.offset(1.0, 90.5)  # the scalar path: same figures to well under a micrometre
+    assert math.isclose(xte[1], x1, abs_tol=1e-6) and math.isclose(along[1], a1, abs_tol=1e-6)
