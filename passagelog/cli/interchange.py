@@ -1,8 +1,9 @@
 """``passagelog import`` and ``passagelog export``: files in and out of the logbook.
 
 Import tells the format from the content (``--format`` to insist; a file that is not that
-format is refused before the logbook is touched), writes everything in one transaction
-(all or nothing) and remembers the file by the SHA-256 of its bytes, so importing the same
+format is refused before the logbook is touched), reads and checks the whole file before
+taking the logbook's write lock, then writes everything in one short transaction (all or
+nothing) and remembers the file by the SHA-256 of its bytes, so importing the same
 file again adds nothing and says so. Routes become plans; fixes go to a voyage. The read
 summary (lines read, fixes kept, rejected lines by reason with their first line numbers)
 goes to stderr; ``--json`` prints it on stdout for scripts.
@@ -174,36 +175,43 @@ def import_(ctx: click.Context, file: str, fmt: str | None, voyage: str | None,
                     click.echo(json.dumps({"imported": False, "source": label, "format": found,
                                            "sha256": sha}))
                 return
-            plans: list[dict] = []
+            # Read and check the whole file first, without the logbook's write lock (the
+            # feed and other writers go on meanwhile); then one short transaction writes it.
+            routes = []
+            if wants_routes:
+                routes = read_routes(path, fmt=found, label=label,
+                                     missing_ok=(found == "gpx" and wants_fixes))
+                if plan_name is not None and len(routes) > 1:
+                    raise click.UsageError(
+                        f"{label} holds {len(routes)} routes; --plan names only one")
+            prepared = None
             summary = None
-            with book.transaction():
-                if wants_routes:
-                    routes = read_routes(path, fmt=found, label=label,
-                                         missing_ok=(found == "gpx" and wants_fixes))
-                    if plan_name is not None and len(routes) > 1:
-                        raise click.UsageError(
-                            f"{label} holds {len(routes)} routes; --plan names only one")
-                    for route in routes:
-                        name = plan_name or route.name
-                        plan_id, revision = book.create_plan(
-                            route, f"imported from {label}", name=name)
-                        plans.append({"plan": name, "plan_id": plan_id, "revision": revision,
-                                      "waypoints": len(route.waypoints)})
-                if wants_fixes:
-                    with _Progress(size, label, not quiet) as progress:
-                        reader = FixReader(path, fmt=found, thin_s=thin_s,
-                                           talkers=talkers or None,
-                                           require_checksum=not allow_missing_checksum,
-                                           start_date=first_date, progress=progress.callback,
-                                           label=label)
-                        book.add_fixes(voyage, reader)
-                    summary = reader.summary
-                    if summary.fixes_kept == 0 and (found != "gpx" or summary.lines_read):
-                        from passagelog.errors import FormatError
+            if wants_fixes:
+                book.voyage(voyage)  # an unknown voyage is named before the file is read
+                with _Progress(size, label, not quiet) as progress:
+                    reader = FixReader(path, fmt=found, thin_s=thin_s,
+                                       talkers=talkers or None,
+                                       require_checksum=not allow_missing_checksum,
+                                       start_date=first_date, progress=progress.callback,
+                                       label=label)
+                    prepared = book.prepare_fixes(reader)
+                summary = reader.summary
+                if summary.fixes_kept == 0 and (found != "gpx" or summary.lines_read):
+                    from passagelog.errors import FormatError
 
-                        detail = "; ".join(line.strip() for line in summary.report_lines()[1:])
-                        raise FormatError("no fix could be read; nothing was imported"
-                                          + (f" ({detail})" if detail else ""), where=label)
+                    detail = "; ".join(line.strip() for line in summary.report_lines()[1:])
+                    raise FormatError("no fix could be read; nothing was imported"
+                                      + (f" ({detail})" if detail else ""), where=label)
+            plans: list[dict] = []
+            with book.transaction():
+                for route in routes:
+                    name = plan_name or route.name
+                    plan_id, revision = book.create_plan(
+                        route, f"imported from {label}", name=name)
+                    plans.append({"plan": name, "plan_id": plan_id, "revision": revision,
+                                  "waypoints": len(route.waypoints)})
+                if prepared is not None:
+                    book.add_fixes(voyage, prepared)
                 counts = {"plans": len(plans),
                           "fixes": summary.fixes_kept if summary else 0,
                           "rejected": summary.lines_rejected if summary else 0}

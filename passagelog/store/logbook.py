@@ -194,6 +194,125 @@ class VerifyReport:
 
 
 # ---------------------------------------------------------------------------------------------
+# fixes made ready for writing before the write lock is taken
+
+
+def _optional(values: np.ndarray) -> list:
+    """A float column as values for SQLite: NaN (no value) becomes None (NULL)."""
+    out = values.tolist()
+    if np.isnan(values).any():
+        out = [None if x != x else x for x in out]
+    return out
+
+
+def _floats(values: list) -> np.ndarray:
+    """An optional float column as float64, None as NaN."""
+    return np.array([math.nan if x is None else x for x in values], dtype=np.float64)
+
+
+@dataclass(frozen=True, eq=False)
+class _FixChunk:
+    """Up to one batch of fixes as plain columns (numpy for numbers, NaN for no value; lists
+    for texts), with each fix's implied speed from the fix before it in the stream."""
+
+    time_s: np.ndarray
+    lat: np.ndarray
+    lon: np.ndarray
+    hdop: np.ndarray
+    cog: np.ndarray
+    sog_kn: np.ndarray
+    heading: np.ndarray
+    stw_kn: np.ndarray
+    satellites: list
+    time_utc: list
+    method: list
+    fix_mode: list
+    remarks: list
+    source: list
+    #: knots; NaN without a predecessor (the stream's first fix: set when it is written)
+    implied_speed_kn: np.ndarray
+    #: at the same time as its predecessor but more than 1 m from it (suspect with a limit)
+    moved: np.ndarray
+
+    @classmethod
+    def of(cls, batch: list, prev: tuple | None, inverse_np: Callable) -> "_FixChunk":
+        """The chunk of ``batch``; ``prev`` is (lat, lon, time_s) of the fix before it."""
+        for i, f in enumerate(batch):
+            if not isinstance(f, Fix):
+                raise InputError(f"fix {i + 1} of the batch is not a Fix: {f!r}")
+        n = len(batch)
+        t_arr = np.array([f.time_utc.timestamp() for f in batch], dtype=np.float64)
+        lat_arr = np.array([f.lat for f in batch], dtype=np.float64)
+        lon_arr = np.array([f.lon for f in batch], dtype=np.float64)
+        if not (np.isfinite(t_arr).all() and np.isfinite(lat_arr).all()
+                and np.isfinite(lon_arr).all()):
+            raise InputError("a fix in the batch has a time or position that is not finite")
+        # implied speed from each fix's predecessor (the previous one in the stream)
+        plat = np.empty(n)
+        plon = np.empty(n)
+        pt = np.empty(n)
+        plat[1:], plon[1:], pt[1:] = lat_arr[:-1], lon_arr[:-1], t_arr[:-1]
+        has_prev = np.ones(n, dtype=bool)
+        if prev is None:
+            has_prev[0] = False
+            plat[0], plon[0], pt[0] = lat_arr[0], lon_arr[0], t_arr[0]
+        else:
+            plat[0], plon[0], pt[0] = prev
+        dist_m, _, _ = inverse_np(plat, plon, lat_arr, lon_arr)
+        dt = np.abs(t_arr - pt)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            implied = np.where(has_prev & (dt > 0), dist_m / dt * _KN_PER_MPS, np.nan)
+        moved = has_prev & (dt == 0) & (dist_m > 1.0)
+        return cls(
+            time_s=t_arr, lat=lat_arr, lon=lon_arr,
+            hdop=_floats([f.hdop for f in batch]), cog=_floats([f.cog for f in batch]),
+            sog_kn=_floats([f.sog_kn for f in batch]),
+            heading=_floats([f.heading for f in batch]),
+            stw_kn=_floats([f.stw_kn for f in batch]),
+            satellites=[f.satellites for f in batch],
+            time_utc=[f.time_utc.isoformat()[:-6] + "Z" for f in batch],
+            method=[f.method for f in batch], fix_mode=[f.fix_mode for f in batch],
+            remarks=[f.remarks for f in batch], source=[f.source for f in batch],
+            implied_speed_kn=implied, moved=moved)
+
+
+def _implied_from(prev: tuple, chunk: _FixChunk) -> tuple[float, bool]:
+    """(implied speed in knots or NaN, moved) of the chunk's first fix from ``prev`` =
+    (lat, lon, time_s) of the voyage's previous fix in the logbook (as :meth:`_FixChunk.of`
+    does for the others)."""
+    from passagelog.nav.geodesic import inverse_np
+
+    plat, plon, pt = prev
+    dist_m, _, _ = inverse_np(np.array([plat], dtype=np.float64),
+                              np.array([plon], dtype=np.float64), chunk.lat[:1], chunk.lon[:1])
+    dt = np.abs(chunk.time_s[:1] - pt)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        implied = np.where(dt > 0, dist_m / dt * _KN_PER_MPS, np.nan)
+    return float(implied[0]), bool((dt == 0)[0] and (dist_m > 1.0)[0])
+
+
+class PreparedFixes:
+    """A stream of fixes read, checked and reduced to what the logbook stores (made by
+    :meth:`Logbook.prepare_fixes`, written by :meth:`Logbook.add_fixes`).
+
+    Holds plain columns, not :class:`~passagelog.model.Fix` objects: some hundred bytes a
+    fix plus its texts (the source sentence mostly).
+    """
+
+    __slots__ = ("chunks", "_count")
+
+    def __init__(self, chunks: tuple[_FixChunk, ...]):
+        self.chunks = chunks
+        self._count = sum(len(c.time_s) for c in chunks)
+
+    def __len__(self) -> int:
+        return self._count
+
+    def __repr__(self) -> str:
+        return f"PreparedFixes({self._count} fixes)"
+
+
+# ---------------------------------------------------------------------------------------------
 
 
 def _create_private(path: Path) -> None:
@@ -703,36 +822,63 @@ class Logbook:
         over the time between them; above the craft's maximum speed the fix is stored but
         flagged suspect. ``fix.supersedes``/``reason`` are ignored: use :meth:`correct_fix`.
         """
+        prepared = self.prepare_fixes([fix])
         with self.transaction():
             vid = self._voyage_row(voyage)[0]
-            fix_id = self._insert_fixes(vid, [fix], None, None)[0]
+            fix_id = self._write_fixes(vid, prepared, None)
             return self.fix(fix_id)
 
-    def add_fixes(self, voyage: Voyage | int | str, fixes: Iterable[Fix], *,
-                  batch_size: int = 10000) -> int:
-        """Record a stream of fixes in one transaction (all or nothing); returns how many.
+    @staticmethod
+    def prepare_fixes(fixes: Iterable[Fix], *, batch_size: int = 10000) -> PreparedFixes:
+        """Read and check a whole stream of fixes and reduce it to what :meth:`add_fixes`
+        writes, without touching any logbook (so without its write lock).
 
-        Streams in batches of ``batch_size``; the implied speed of each fix is taken from the
-        fix before it in the stream (the first from the voyage's previous fix in time).
+        Everything that does not depend on the logbook's contents is done here: the checks,
+        the stored text of each time, the implied speed of each fix from the fix before it in
+        the stream. A reader's error (a file's bad line) is raised from here. Call it before
+        a :meth:`transaction` that holds more than the fixes (an import record), so that the
+        transaction holds the write lock only while it writes.
         """
         if batch_size < 1:
             raise InputError(f"batch size {batch_size!r} must be at least 1")
-        total = 0
+        from passagelog.nav.geodesic import inverse_np
+
+        chunks: list[_FixChunk] = []
+        iterator = iter(fixes)
+        prev: tuple | None = None
+        while True:
+            batch = list(islice(iterator, batch_size))
+            if not batch:
+                break
+            chunk = _FixChunk.of(batch, prev, inverse_np)
+            del batch  # the Fix objects go; the chunk keeps plain columns
+            chunks.append(chunk)
+            prev = (float(chunk.lat[-1]), float(chunk.lon[-1]), float(chunk.time_s[-1]))
+        return PreparedFixes(tuple(chunks))
+
+    def add_fixes(self, voyage: Voyage | int | str, fixes: Iterable[Fix] | PreparedFixes, *,
+                  batch_size: int = 10000) -> int:
+        """Record a stream of fixes in one transaction (all or nothing); returns how many.
+
+        The implied speed of each fix is taken from the fix before it in the stream (the first
+        from the voyage's previous fix in time). The whole stream is read and checked first
+        (:meth:`prepare_fixes`, ``batch_size`` fixes at a time) and only then is the write
+        lock taken, for the writes alone; ``fixes`` may also be :class:`PreparedFixes`
+        already made. Inside a larger :meth:`transaction` the lock is already held: prepare
+        the fixes before it.
+        """
+        if batch_size < 1:
+            raise InputError(f"batch size {batch_size!r} must be at least 1")
+        if not isinstance(fixes, PreparedFixes):
+            self._voyage_row(voyage)  # an unknown voyage is named before the stream is read
+            fixes = self.prepare_fixes(fixes, batch_size=batch_size)
+        if not len(fixes):
+            self._voyage_row(voyage)
+            return 0
         with self.transaction():
             vid = self._voyage_row(voyage)[0]
-            iterator = iter(fixes)
-            prev: tuple | None = None
-            first = True
-            while True:
-                batch = list(islice(iterator, batch_size))
-                if not batch:
-                    break
-                ids = self._insert_fixes(vid, batch, prev, None, lookup=first)
-                first = False
-                last = batch[-1]
-                prev = (last.lat, last.lon, last.time_utc.timestamp())
-                total += len(ids)
-        return total
+            self._write_fixes(vid, fixes, None)
+        return len(fixes)
 
     def correct_fix(self, voyage: Voyage | int | str, fix_id: int, fix: Fix,
                     reason: str) -> Fix:
@@ -740,10 +886,11 @@ class Logbook:
         returns the new fix."""
         if not isinstance(reason, str) or not reason.strip():
             raise InputError(f"correction of fix {fix_id}: a reason is required")
+        prepared = self.prepare_fixes([fix])
         with self.transaction():
             vid = self._voyage_row(voyage)[0]
             self._check_correctable("fix", vid, fix_id)
-            new_id = self._insert_fixes(vid, [fix], None, (fix_id, reason))[0]
+            new_id = self._write_fixes(vid, prepared, (fix_id, reason))
             return self.fix(new_id)
 
     def _check_correctable(self, table: str, vid: int, record_id: Any) -> None:
@@ -761,62 +908,50 @@ class Logbook:
             raise StoreError(f"{label} {record_id} was already corrected by {label} "
                              f"{later[0][0]}; correct that one instead")
 
-    def _insert_fixes(self, vid: int, batch: list[Fix], prev: tuple | None,
-                      correction: tuple[int, str] | None, *, lookup: bool = True) -> list[int]:
-        from passagelog.nav.geodesic import inverse_np
-
+    def _write_fixes(self, vid: int, prepared: PreparedFixes,
+                     correction: tuple[int, str] | None) -> int:
+        """Append prepared fixes to the fix chain (inside a transaction): what needs the
+        logbook's state -- the previous fix of the first, the craft's maximum speed, the chain
+        head and the ids -- and the inserts. Returns the last fix id."""
         max_kn = self._q("SELECT c.max_speed_kn FROM voyage v LEFT JOIN craft c "
                          "USING (craft_id) WHERE v.voyage_id = ?", (vid,))[0][0]
+        supersedes, reason = correction if correction else (None, None)
+        first = prepared.chunks[0]
+        prev = self._previous_fix(vid, float(first.time_s[0]), supersedes or 0)
+        last_id = 0
+        for k, chunk in enumerate(prepared.chunks):
+            implied, moved = chunk.implied_speed_kn, chunk.moved
+            if k == 0 and prev is not None:  # the first fix: from the voyage's previous fix
+                implied, moved = implied.copy(), moved.copy()
+                implied[0], moved[0] = _implied_from(prev, first)
+            last_id = self._insert_chunk(vid, chunk, implied, moved, max_kn, supersedes, reason)
+        return last_id
+
+    def _insert_chunk(self, vid: int, c: _FixChunk, implied: np.ndarray, moved: np.ndarray,
+                      max_kn: float | None, supersedes: int | None, reason: str | None) -> int:
         last_id, prev_hash = self._head("fix")
         recorded = self._now()
-        supersedes, reason = correction if correction else (None, None)
-        n = len(batch)
-        for i, f in enumerate(batch):
-            if not isinstance(f, Fix):
-                raise InputError(f"fix {i + 1} of the batch is not a Fix: {f!r}")
-        times = [f.time_utc.timestamp() for f in batch]
-        t_arr = np.array(times)
-        lat_arr = np.array([f.lat for f in batch], dtype=np.float64)
-        lon_arr = np.array([f.lon for f in batch], dtype=np.float64)
-        if not (np.isfinite(t_arr).all() and np.isfinite(lat_arr).all()
-                and np.isfinite(lon_arr).all()):
-            raise InputError("a fix in the batch has a time or position that is not finite")
-        if lookup and prev is None:
-            prev = self._previous_fix(vid, times[0], supersedes or 0)
-        # implied speed from each fix's predecessor (the previous one in the batch)
-        plat = np.empty(n)
-        plon = np.empty(n)
-        pt = np.empty(n)
-        plat[1:], plon[1:], pt[1:] = lat_arr[:-1], lon_arr[:-1], t_arr[:-1]
-        has_prev = np.ones(n, dtype=bool)
-        if prev is None:
-            has_prev[0] = False
-            plat[0], plon[0], pt[0] = lat_arr[0], lon_arr[0], t_arr[0]
-        else:
-            plat[0], plon[0], pt[0] = prev
-        dist_m, _, _ = inverse_np(plat, plon, lat_arr, lon_arr)
-        dt = np.abs(t_arr - pt)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            implied = np.where(has_prev & (dt > 0), dist_m / dt * _KN_PER_MPS, np.nan)
+        n = len(c.time_s)
         if max_kn is not None:
-            suspect = (implied > max_kn) | (has_prev & (dt == 0) & (dist_m > 1.0))
+            suspect = (implied > max_kn) | moved
         else:
             suspect = np.zeros(n, dtype=bool)
-        implied_list = [None if x != x else x for x in implied.tolist()]
-        suspect_list = suspect.astype(np.int64).tolist()
+        rep = itertools.repeat
+        source_rows = zip(
+            range(last_id + 1, last_id + n + 1), rep(vid), c.time_utc, c.time_s.tolist(),
+            c.lat.tolist(), c.lon.tolist(), c.method, _optional(c.hdop), c.satellites,
+            c.fix_mode, _optional(c.cog), _optional(c.sog_kn), _optional(c.heading),
+            _optional(c.stw_kn), c.remarks, c.source, rep(supersedes), rep(reason),
+            rep(recorded), suspect.astype(np.int64).tolist(), _optional(implied))
         rows = []
         out = rows.append
         fix_bytes = ch.fix_bytes
         from hashlib import sha256
-        fid = last_id
-        for f, ts, s, v in zip(batch, times, suspect_list, implied_list):
-            fid += 1
-            row = (fid, vid, f.time_utc.isoformat()[:-6] + "Z", ts, f.lat, f.lon, f.method,
-                   f.hdop, f.satellites, f.fix_mode, f.cog, f.sog_kn, f.heading, f.stw_kn,
-                   f.remarks, f.source, supersedes, reason, recorded, s, v)
+        for row in source_rows:
             digest = sha256(prev_hash + fix_bytes(row)).digest()
             out(row + (prev_hash, digest))
             prev_hash = digest
+        fid = last_id + n
         try:
             whole = n - n % _FIX_ROWS_PER_INSERT
             if whole:  # many rows per INSERT: a quarter less work per row than one by one
@@ -831,17 +966,17 @@ class Logbook:
         self._set_head("fix", fid, prev_hash)
         block = np.empty(n, dtype=BLOCK_DTYPE)
         block["fix_id"] = np.arange(last_id + 1, fid + 1)
-        block["time_s"] = t_arr
-        block["lat"] = lat_arr
-        block["lon"] = lon_arr
-        block["cog"] = np.array([f.cog for f in batch], dtype=np.float64)
-        block["sog_kn"] = np.array([f.sog_kn for f in batch], dtype=np.float64)
-        block["heading"] = np.array([f.heading for f in batch], dtype=np.float64)
-        block["stw_kn"] = np.array([f.stw_kn for f in batch], dtype=np.float64)
+        block["time_s"] = c.time_s
+        block["lat"] = c.lat
+        block["lon"] = c.lon
+        block["cog"] = c.cog
+        block["sog_kn"] = c.sog_kn
+        block["heading"] = c.heading
+        block["stw_kn"] = c.stw_kn
         block["implied_speed_kn"] = implied
         block["suspect"] = suspect
         self._cache_append(vid, block)
-        return list(range(last_id + 1, fid + 1))
+        return fid
 
     def _cache_append(self, vid: int, block: np.ndarray) -> None:
         tail = self._q("SELECT block_id, n, data FROM fix_block WHERE voyage_id = ? "

@@ -80,6 +80,69 @@ def test_import_is_all_or_nothing(db, tmp_path):
         assert book.imports() == []
 
 
+def _write_lock_free(db) -> bool:
+    """Whether another connection could take the logbook's write lock at once."""
+    probe = sqlite3.connect(db, timeout=0, isolation_level=None)
+    try:
+        probe.execute("BEGIN IMMEDIATE")
+        probe.execute("ROLLBACK")
+        return True
+    except sqlite3.OperationalError:
+        return False
+    finally:
+        probe.close()
+
+
+def _spy_transactions(monkeypatch) -> list:
+    """Note each write transaction the import begins (the logbook's write lock)."""
+    entered: list = []
+    real = Logbook.transaction
+
+    def transaction(self):
+        entered.append(self._depth)
+        return real(self)
+
+    monkeypatch.setattr(Logbook, "transaction", transaction)
+    return entered
+
+
+def test_import_reads_the_file_before_taking_the_write_lock(db, tmp_path, monkeypatch):
+    # issue 9: a long import held the write lock while it parsed, and the feed waited
+    path = _nmea(tmp_path, n=300)
+    free = []
+    entered = _spy_transactions(monkeypatch)
+    real_prepare = Logbook.prepare_fixes
+
+    def prepare(fixes, **kw):
+        def watched():
+            for k, fix in enumerate(fixes):
+                if k in (0, 150, 299):  # while the file is being read
+                    free.append((_write_lock_free(db), list(entered)))
+                yield fix
+        return real_prepare(watched(), **kw)
+
+    monkeypatch.setattr(Logbook, "prepare_fixes", staticmethod(prepare))
+    r = run(db, "import", str(path), "--voyage", "V1")
+    assert r.exception is None, r.output
+    assert free == [(True, [])] * 3  # no transaction begun while reading, the lock free
+    assert entered and entered[0] == 0  # then one transaction, with the writes inside it
+    assert _fix_count(db) == 300
+    with Logbook.open(db) as book:
+        assert book.verify().ok and len(book.imports()) == 1
+
+
+def test_a_file_with_a_bad_line_never_takes_the_write_lock(db, tmp_path, monkeypatch):
+    rows = ["time_utc,lat,lon"] + [f"2024-05-01T12:00:{k:02d}Z,10,20" for k in range(50)]
+    rows.append("2024-05-01T12:01:00Z,10,north")
+    path = tmp_path / "f.csv"
+    path.write_text("\n".join(rows) + "\n", encoding="utf-8")
+    entered = _spy_transactions(monkeypatch)
+    r = run(db, "import", str(path), "--voyage", "V1")
+    assert isinstance(r.exception, PassagelogError)
+    assert "f.csv, line 52, column lon" in str(r.exception)
+    assert entered == [] and _fix_count(db) == 0
+
+
 def test_a_file_that_is_not_the_claimed_format_is_refused_before_writing(db, tmp_path):
     path = _nmea(tmp_path)
     r = run(db, "import", str(path), "--format", "gpx", "--voyage", "V1")
