@@ -18,6 +18,7 @@ import click
 from passagelog.cli.common import TABLE_FORMATS, db_path_from, options, write_csv
 from passagelog.errors import InputError
 from passagelog.report.display import span_text
+from passagelog.review.status import SUSPECT_WHY
 
 TABLE_CHOICES = ("fixes", "legs", "passages", "episodes", "noon", "gaps", "suspects")
 NM_M = 1852.0
@@ -312,7 +313,7 @@ def review(ctx, voyage, plan_file, plan_format, fixes_file, fixes_format, depart
 
 
 def _nm(m: float | None, digits: int = 2) -> str:
-    return "-" if m is None else f"{m / NM_M:.{digits}f} NM"
+    return "-" if m is None or not math.isfinite(m) else f"{m / NM_M:.{digits}f} NM"
 
 
 def _deg(value: float | None) -> str:
@@ -355,7 +356,8 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
                else f"  ({span_text(st.time_s - now_s)} later than this computer's clock)")
     lines.append(_line("Fix", _when(st.time_s, zd_at(st.time_s), seconds=True) + age))
     lines.append(_line("Position", format_position(st.lat, st.lon)
-                       + ("  SUSPECT fix" if st.suspect else "")))
+                       + (f"  SUSPECT fix ({SUSPECT_WHY.get(st.suspect_reason, 'marked')})"
+                          if st.suspect else "")))
     if st.phase != "under-way":
         lines.append(_line("Phase", st.phase))
     lines.append(_line("Leg", f"{st.leg} of {st.legs}: {st.from_wp} -> {st.to_wp}"))
@@ -363,7 +365,11 @@ def status_lines(st, *, zd_at: Callable[[float], int], now_s: float | None, voya
     limit = "no limit set" if st.xtl_m is None else (
         f"limit {_nm(st.xtl_m)} {st.side or ''}".rstrip()
         + (": inside" if st.inside_xtl else ": OUTSIDE"))
-    lines.append(_line("XTE", f"{_nm(abs(st.xte_m))} {side} ({st.xte_m:+.1f} m), {limit}"))
+    if math.isfinite(st.xte_m):
+        lines.append(_line("XTE", f"{_nm(abs(st.xte_m))} {side} ({st.xte_m:+.1f} m), {limit}"))
+    else:
+        lines.append(_line("XTE", "-  (no cross-track foot on this leg: the fix is at the pole "
+                                  "of the leg's great circle or far off the line)"))
     lines.append(_line("Along track", f"{_nm(st.along_m)} from {st.from_wp}, "
                                       f"leg to go {_nm(st.leg_to_go_m)}"))
     lines.append(_line("Next WP", f"{st.to_wp}: DTW {_nm(st.dtw_m)}, BTW {_deg(st.btw)}"))

@@ -12,6 +12,13 @@ from passagelog.nav.geodesic import inverse
 from passagelog.review.results import PHASES, Review, _f, iso_z
 
 
+#: What each reason of a suspect fix means, in a few words (for status lines and alerts).
+SUSPECT_WHY = {
+    "logbook": "marked suspect in the logbook",
+    "speed": "implausible speed from the fix before",
+    "no-foot": "no cross-track foot on its leg",
+}
+
 @dataclass(frozen=True)
 class Status:
     """What a watch officer asks for at one fix.
@@ -57,17 +64,19 @@ class Status:
     drift_kn: float | None
     destination: str
     revision_number: int | None = None  # as rows number it (see Review.revision_numbers)
+    #: why the fix is suspect (``logbook``, ``speed``, ``no-foot``; None when it is not)
+    suspect_reason: str | None = None
 
     def row(self) -> dict:
         return {
             "time_utc": iso_z(self.time_s), "lat": self.lat, "lon": self.lon,
-            "phase": self.phase, "suspect": self.suspect,
+            "phase": self.phase, "suspect": self.suspect, "suspect_reason": self.suspect_reason,
             "revision": self.revision if self.revision_number is None else self.revision_number,
             "leg": self.leg, "legs": self.legs, "from_wp": self.from_wp, "to_wp": self.to_wp,
-            "xte_m": self.xte_m, "side": self.side, "xtl_m": self.xtl_m,
-            "inside_xtl": self.inside_xtl, "along_m": self.along_m,
-            "leg_to_go_m": self.leg_to_go_m, "dtw_m": self.dtw_m, "btw": self.btw,
-            "route_to_go_m": self.route_to_go_m, "cmg_window": self.cmg_window,
+            "xte_m": _f(self.xte_m), "side": self.side, "xtl_m": self.xtl_m,
+            "inside_xtl": self.inside_xtl, "along_m": _f(self.along_m),
+            "leg_to_go_m": _f(self.leg_to_go_m), "dtw_m": _f(self.dtw_m), "btw": self.btw,
+            "route_to_go_m": _f(self.route_to_go_m), "cmg_window": self.cmg_window,
             "smg_window_kn": self.smg_window_kn, "window_s": self.window_s,
             "window_used_s": self.window_used_s,
             "eta_wp_plan_utc": iso_z(self.eta_wp_plan_s),
@@ -129,4 +138,6 @@ def status_of(review: Review, row: int = -1) -> Status:
         eta_wp_plan_s=_f(fr.eta_wp_plan_s[i]), eta_dest_plan_s=_f(fr.eta_dest_plan_s[i]),
         eta_wp_smg_s=_f(fr.eta_wp_smg_s[i]), eta_dest_smg_s=_f(fr.eta_dest_smg_s[i]),
         delay_s=_f(fr.delay_s[i]), set=set_deg, drift_kn=drift, destination=names[-1],
+        suspect_reason=next((s.reason for s in review.suspects if s.fix == i), None)
+        if fr.suspect[i] else None,
     )

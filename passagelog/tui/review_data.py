@@ -24,13 +24,13 @@ import numpy as np
 import passagelog
 
 #: The derived-result kind, versioned with the layout of :class:`ReviewSummary`.
-KIND = "tui-review-1"
+KIND = "tui-review-2"
 
 #: points kept per series for the plots (a terminal chart has a few tens of thousands of dots)
 PLOT_POINTS = 20_000
 
 #: The review tables the view shows.
-TABLE_KEYS = ("legs", "passages", "episodes", "noon", "gaps")
+TABLE_KEYS = ("legs", "passages", "episodes", "noon", "gaps", "suspects")
 
 _ARRAYS = ("plan_lon", "plan_lat", "fix_lon", "fix_lat", "wp_lon", "wp_lat", "xte_t", "xte_nm",
            "port_nm", "stbd_nm")

@@ -24,6 +24,7 @@ from textual.widgets import DataTable, Static, TabbedContent, TabPane
 
 from passagelog.errors import PassagelogError
 from passagelog.nav.units import NM_M
+from passagelog.review.status import SUSPECT_WHY
 from passagelog.tui import review_data as rd
 from passagelog.tui import text as fmt
 from passagelog.tui.chart import Chart, Series, render_chart
@@ -63,9 +64,14 @@ TABLES = {
         ("From UTC", "start_utc", "utc"), ("To UTC", "end_utc", "utc"),
         ("For", "duration_s", "dur"), ("Across NM", "distance_m", "nm"), ("Leg", "leg", "int"),
     ),
+    "suspects": (
+        ("Time UTC", "time_utc", "utc"), ("Lat", "lat", "lat"), ("Lon", "lon", "lon"),
+        ("Leg", "leg", "int"), ("Implied kn", "implied_speed_kn", "f1"),
+        ("Why", "reason", "why"), ("Fix id", "fix_id", "int"),
+    ),
 }
 TAB_TITLES = {"legs": "Legs", "passages": "Passages", "episodes": "Episodes", "noon": "Noon",
-              "gaps": "Gaps"}
+              "gaps": "Gaps", "suspects": "Suspects"}
 
 
 def cell(value, how: str) -> str:
@@ -96,6 +102,11 @@ def cell(value, how: str) -> str:
         return "GC" if value == "great-circle" else "RL"
     if how == "flag":
         return "yes" if value else ""
+    if how in ("lat", "lon"):
+        text = fmt.position(value if how == "lat" else 0.0, value if how == "lon" else 0.0)
+        return text.split(" ")[0 if how == "lat" else 1]
+    if how == "why":
+        return SUSPECT_WHY.get(str(value), str(value))
     return str(value)
 
 

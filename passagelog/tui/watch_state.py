@@ -20,6 +20,7 @@ import numpy as np
 
 from passagelog.nav.units import NM_M
 from passagelog.report.display import span_text  # noqa: F401 - also used by watch_view
+from passagelog.review.status import SUSPECT_WHY
 
 #: Alert thresholds (common practice; each one is a setting of :class:`WatchSettings`).
 DEFAULT_APPROACH_M = 1.0 * NM_M
@@ -313,9 +314,9 @@ def alerts_for(state: WatchState, now_s: float,
         out.append(Alert("arrived", f"Arrived at {s.destination}.", "information"))
         return tuple(out)
     if s.suspect:
-        out.append(Alert("suspect", "Latest fix is SUSPECT (implausible speed): check it.",
-                         "warning"))
-    if not s.inside_xtl and s.xtl_m is not None:
+        why = SUSPECT_WHY.get(s.suspect_reason or "", "marked suspect")
+        out.append(Alert("suspect", f"Latest fix is SUSPECT ({why}): check it.", "warning"))
+    if not s.inside_xtl and s.xtl_m is not None and np.isfinite(s.xte_m):
         side = "starboard" if s.side == "R" else "port"
         out.append(Alert("off-track", f"OFF TRACK: XTE {abs(s.xte_m) / NM_M:.2f} NM {side}, "
                                       f"limit {s.xtl_m / NM_M:.2f} NM", "warning"))

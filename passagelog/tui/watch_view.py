@@ -8,6 +8,8 @@ re-checks 'no fix for too long' without waiting for a fix.
 
 from __future__ import annotations
 
+import math
+
 from datetime import datetime, timezone
 
 from rich.table import Table
@@ -43,6 +45,10 @@ def fix_age(fix_s: float, now_s: float) -> str:
 
 def xte_text(st) -> Text:
     """``XTE 0.30 NM R (starboard), inside the 2.00 NM limit``."""
+    if not math.isfinite(st.xte_m):
+        return Text.assemble("XTE ", ("-", "bold"),
+                             ("  no cross-track foot on this leg: the fix is at the pole of "
+                              "the leg's great circle or far off the line", "dim"))
     xte_nm = abs(st.xte_m) / NM_M
     if round(xte_nm, 2) == 0.0:
         where = "0.00 NM, on the track"
@@ -67,6 +73,12 @@ def _ahead_behind(delay_s: float | None) -> str:
     return f"{span_text(delay_s)} {word}"
 
 
+def _nm(distance_m: float | None) -> str:
+    """``12.3 NM``, or a dash where there is no figure (e.g. no cross-track foot)."""
+    text = fmt.nm(distance_m)
+    return text if text == fmt.DASH else f"{text} NM"
+
+
 def figures_grid(state: WatchState) -> Table:
     """Progress, ETAs, made good, set and drift, schedule: two label/value pairs a row."""
     st = state.status
@@ -75,9 +87,8 @@ def figures_grid(state: WatchState) -> Table:
     grid.add_column()
     grid.add_column(style="dim")
     grid.add_column()
-    grid.add_row("Along leg", f"{st.along_m / NM_M:.1f} NM", "Leg to go",
-                 f"{st.leg_to_go_m / NM_M:.1f} NM")
-    grid.add_row(f"DTW {st.to_wp}", f"{st.dtw_m / NM_M:.1f} NM", "BTW", fmt.course(st.btw))
+    grid.add_row("Along leg", _nm(st.along_m), "Leg to go", _nm(st.leg_to_go_m))
+    grid.add_row(f"DTW {st.to_wp}", _nm(st.dtw_m), "BTW", fmt.course(st.btw))
     passage = state.last_passage
     if st.phase == "arrived":
         when = (fmt.utc_time(_t(passage.time_s)) if passage is not None
@@ -88,8 +99,7 @@ def figures_grid(state: WatchState) -> Table:
         ttg = None
         if st.smg_window_kn:
             ttg = st.dtw_m / (st.smg_window_kn * NM_M / 3600.0)
-        grid.add_row("TTG (SMG)", fmt.duration(ttg), "Route to go",
-                     f"{st.route_to_go_m / NM_M:.1f} NM")
+        grid.add_row("TTG (SMG)", fmt.duration(ttg), "Route to go", _nm(st.route_to_go_m))
         # by plan: from now at the legs' planned speeds; by progress: at the SMG
         grid.add_row(f"ETA {st.to_wp}", f"{fmt.utc_time(_t(st.eta_wp_plan_s))} at plan speed",
                      "by progress", fmt.utc_time(_t(st.eta_wp_smg_s)))
@@ -206,7 +216,8 @@ class WatchView(VerticalScroll, can_focus=True):
         ))
         xte_line.update(xte_text(st))
         bar.display = True
-        bar.xte_m, bar.port_m, bar.stbd_m = st.xte_m, state.xtl_port_m, state.xtl_stbd_m
+        bar.xte_m = st.xte_m if math.isfinite(st.xte_m) else None
+        bar.port_m, bar.stbd_m = state.xtl_port_m, state.xtl_stbd_m
         figures.update(figures_grid(state))
         self._draw_alerts()
 
