@@ -38,6 +38,7 @@ from textual.widgets import DataTable, Input, Label, Select, Static, TabbedConte
 from passagelog.errors import InputError, PassagelogError
 from passagelog.model import ENTRY_KINDS, FIX_METHODS, Fix, LogEntry
 from passagelog.tui import text as fmt
+from passagelog.tui.table import Table
 
 SHOWN_ENTRIES = 200
 #: Fix rows read beyond those on show, on each side (at least a page).
@@ -145,7 +146,7 @@ def entry_zones(entries: list[LogEntry], voyage_zd: int,
     return [at(e.time_utc) for e in entries], at(now)
 
 
-class FixTable(DataTable):
+class FixTable(Table):
     """The fix list: the arrows and page keys read more rows at the ends of what is held."""
 
     BINDINGS = [
@@ -269,7 +270,7 @@ class LogView(Vertical):
                     yield Input(placeholder="what happened", id="entry-text", compact=True)
                     yield Static("", id="entry-text-msg", classes="field-error")
                 yield Static("", id="entry-head", classes="view-head")
-                yield DataTable(id="entry-table", cursor_type="row", zebra_stripes=True)
+                yield Table(id="entry-table", cursor_type="row", zebra_stripes=True)
 
     def on_mount(self) -> None:
         table = self.query_one("#fix-table", DataTable)

@@ -23,6 +23,7 @@ from passagelog.errors import PassagelogError
 from passagelog.nav.units import NM_M
 from passagelog.tui import plan_rows as pr
 from passagelog.tui import text as fmt
+from passagelog.tui.table import Table
 
 COLUMNS = (
     ("#", "n"), ("Waypoint", "name"), ("Position", "pos"), ("Sail", "sail"), ("Kn", "kn"),
@@ -98,7 +99,7 @@ class PlanView(Vertical):
 
     def compose(self) -> ComposeResult:
         yield Static("", id="plan-head", classes="view-head")
-        table = DataTable(id="plan-table", cursor_type="row", zebra_stripes=True,
+        table = Table(id="plan-table", cursor_type="row", zebra_stripes=True,
                           fixed_columns=2)  # number and name stay when scrolled sideways
         yield table
         with Grid(id="plan-editor"):

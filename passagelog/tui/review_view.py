@@ -29,6 +29,7 @@ from passagelog.tui import review_data as rd
 from passagelog.tui import text as fmt
 from passagelog.tui.chart import Chart, Series, render_chart
 from passagelog.tui.review_data import ReviewSummary
+from passagelog.tui.table import Table
 
 #: table -> columns (header, row key, how to write it)
 TABLES = {
@@ -203,7 +204,7 @@ class ReviewView(Vertical):
         with TabbedContent(id="review-tabs"):
             for key, title in TAB_TITLES.items():
                 with TabPane(title, id=f"review-{key}"):
-                    yield DataTable(id=f"review-table-{key}", zebra_stripes=True,
+                    yield Table(id=f"review-table-{key}", zebra_stripes=True,
                                     cursor_type="row")
             with TabPane("Track plot", id="review-track"):
                 yield Chart(id="review-track-chart")

@@ -56,6 +56,16 @@ async def settle(pilot, view_id: str | None = None, attr: str | None = None):
             break
     await app.workers.wait_for_complete()
     await pilot.pause()
+    # then until two screens a moment apart are the same: a DataTable sizes its columns when
+    # its message queue is idle, which a loaded machine can put after the first paint (a
+    # half-sized table was once caught that way)
+    before = app.export_screenshot()
+    for _ in range(100):
+        await pilot.pause(0.05)
+        now = app.export_screenshot()
+        if now == before:
+            break
+        before = now
 
 
 @pytest.mark.parametrize("size", SIZES, ids=lambda s: f"{s[0]}x{s[1]}")
