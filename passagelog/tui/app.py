@@ -21,6 +21,10 @@ VIEWS = (
     ("review", "Review", "f5"),
 )
 
+#: Seconds after the start at which the Review is reconciled ahead of being shown (the
+#: Plan and Watch views paint first); None: not ahead, only when Review is shown.
+PREFETCH_REVIEW_S = 1.5
+
 
 class PassagelogApp(App):
     """Plan, Log, Watch and Review for the open voyage."""
@@ -43,8 +47,10 @@ class PassagelogApp(App):
     def __init__(self, db_path: str | Path | None = None, *, voyage: str | int | None = None,
                  session: Session | None = None,
                  clock: Callable[[], datetime] = system_clock,
-                 watch_poll_s: float = 0.5) -> None:
+                 watch_poll_s: float = 0.5,
+                 prefetch_review_s: float | None = PREFETCH_REVIEW_S) -> None:
         super().__init__()
+        self.prefetch_review_s = prefetch_review_s
         self.session = session if session is not None else Session(db_path, voyage=voyage,
                                                                     clock=clock)
         self.watch_poll_s = watch_poll_s
@@ -99,6 +105,27 @@ class PassagelogApp(App):
         self.sub_title = (f"{voyage.name}  {self.session.db_path.name}" if voyage
                           else f"no voyage  {self.session.db_path.name}")
         self.call_after_refresh(self._focus_view)
+        if self.prefetch_review_s is not None and self.session.voyage is not None:
+            self.set_timer(self.prefetch_review_s, self._prefetch_review)
+
+    def on_unmount(self) -> None:
+        from passagelog.tui import apart
+
+        apart.stop_all()  # a reconciliation still running is not waited for on quitting
+
+    def _prefetch_review(self) -> None:
+        """Reconcile the whole voyage ahead of the Review view, in a process of its own
+        (unless Review is already shown or its kept review is current), so that Review opens
+        at once."""
+        if self.query("#review-view"):
+            return
+
+        def work() -> None:
+            from passagelog.tui import review_data
+
+            review_data.prefetch(self.session)
+
+        self.run_worker(work, thread=True, group="review-prefetch", exit_on_error=False)
 
     async def _focus_view(self) -> None:
         """Focus the view on show once the screen is up: Plan, unless a key pressed while

@@ -17,6 +17,7 @@ import hashlib
 import io
 import json
 import math
+import threading
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -25,6 +26,10 @@ import passagelog
 
 #: The derived-result kind, versioned with the layout of :class:`ReviewSummary`.
 KIND = "tui-review-2"
+
+#: One reconciliation of the whole voyage at a time in this process: the view, shown while
+#: the one started ahead of it (:func:`prefetch`) runs, waits for it and shows its result.
+RECONCILE_LOCK = threading.Lock()
 
 #: points kept per series for the plots (a terminal chart has a few tens of thousands of dots)
 PLOT_POINTS = 20_000
@@ -176,3 +181,92 @@ def stamp(content_stamp: str, settings: dict) -> str:
     the review settings the view used."""
     text = json.dumps([content_stamp, passagelog.__version__, KIND, settings], sort_keys=True)
     return hashlib.sha256(text.encode("utf-8")).hexdigest()
+
+
+def reconcile_session(session):
+    """The whole voyage of ``session`` reconciled with its plan revisions (a Review)."""
+    from passagelog.errors import PassagelogError
+    from passagelog.review.engine import reconcile
+
+    session.reload_route()
+    if session.route is None:
+        raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
+    plan = [(t, r) for t, r in session.plan_revisions] or session.route
+    return reconcile(plan, session.fix_arrays(), zd_minutes=session.zd_minutes,
+                     entries=session.entries(),
+                     planned_departure_utc=session.voyage.departure_utc)
+
+
+def current_key(session) -> str:
+    """The stamp a summary of the session's voyage must carry to be current."""
+    from passagelog.store import derived
+
+    return stamp(derived.content_stamp(session.logbook, session.voyage.voyage_id), {})
+
+
+def read_kept(session):
+    """``(summary, kept_stamp, written_utc)`` of the kept review, or None."""
+    from passagelog.store import derived
+
+    kept = derived.read_result(session.logbook, session.voyage.voyage_id, KIND)
+    summary = decode(kept.data) if kept is not None else None
+    if summary is None:
+        return None
+    return summary, kept.stamp, kept.written_utc
+
+
+def keep(session, key: str, data: bytes) -> None:
+    """Keep an encoded summary in the logbook under ``key`` (a busy or read-only logbook is
+    fine: it is kept only to open faster next time)."""
+    from passagelog.errors import PassagelogError
+    from passagelog.store import derived
+
+    try:
+        derived.write_result(session.logbook, session.voyage.voyage_id, KIND, key, data)
+    except PassagelogError:
+        pass
+
+
+def reconcile_and_keep(db_path: str, voyage_id: int) -> tuple[str, bytes]:
+    """Run in a process of its own (:func:`passagelog.tui.apart.call_apart`): reconcile the
+    voyage, keep its summary in the logbook and return ``(stamp, encoded summary)``. The
+    stamp is taken before the records are read, so a record added meanwhile leaves the kept
+    summary stale (worked out again), never wrongly current."""
+    from passagelog.tui.session import Session
+
+    session = Session(db_path, voyage=voyage_id)
+    key = current_key(session)
+    data = encode(summarize(reconcile_session(session)))
+    keep(session, key, data)
+    return key, data
+
+
+def reconcile_apart(session) -> tuple[str, ReviewSummary]:
+    """The voyage reconciled and kept by :func:`reconcile_and_keep` in a process of its own
+    (the app's UI stays quick meanwhile): ``(stamp, summary)``."""
+    from passagelog.errors import PassagelogError
+    from passagelog.tui.apart import call_apart
+
+    key, data = call_apart(reconcile_and_keep, str(session.db_path), session.voyage.voyage_id)
+    summary = decode(data)
+    if summary is None:
+        raise PassagelogError("the reconciled review could not be read back")
+    return key, summary
+
+
+def prefetch(session) -> bool:
+    """Reconcile the voyage ahead of the Review view and keep the summary, unless the kept
+    one is current or a reconciliation is already running. True when it reconciled; any
+    failure is left for the view to report when shown."""
+    if session.voyage is None or not RECONCILE_LOCK.acquire(blocking=False):
+        return False
+    try:
+        kept = read_kept(session)
+        if kept is not None and kept[1] == current_key(session):
+            return False
+        reconcile_apart(session)
+        return True
+    except Exception:  # noqa: BLE001 - the view reconciles again and shows the error
+        return False
+    finally:
+        RECONCILE_LOCK.release()

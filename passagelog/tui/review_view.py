@@ -2,7 +2,8 @@
 
 Per-leg figures, waypoint passages, deviation episodes (spells outside the cross-track
 limit), noon figures, gaps, and two plots: the track against the plan, and XTE over time
-with the limits. The reconciliation runs in a worker thread; what the view shows of it is kept
+with the limits. The reconciliation runs in a process of its own (:mod:`passagelog.tui.apart`),
+started from a worker thread, so the UI stays quick meanwhile; what the view shows of it is kept
 in the logbook's derived results (:mod:`passagelog.tui.review_data`), so opening the logbook
 again shows it at once. Each time the view is shown it checks the logbook's content stamp:
 a kept review that is no longer current is shown marked as such while the voyage is
@@ -192,10 +193,10 @@ class ReviewView(Vertical):
     def __init__(self, session, **kwargs) -> None:
         super().__init__(**kwargs)
         self.session = session
-        self.review = None  # the Review when reconciled in this app (None when kept)
         self.summary: ReviewSummary | None = None
         self.loaded = False
         self.computed = 0  # how many times current figures were shown
+        self.reconciled = 0  # ... of them reconciled while shown (not kept before)
         self._shown_key: str | None = None
 
     def compose(self) -> ComposeResult:
@@ -238,52 +239,40 @@ class ReviewView(Vertical):
     @work(thread=True, exclusive=True, group="review")
     def load(self, force: bool = False) -> None:
         """Show the kept review if it is current; else show it marked as older while the
-        voyage is reconciled again, then show and keep the new one."""
-        from passagelog.store import derived
-
+        voyage is reconciled again (or while a reconciliation started ahead of the view
+        finishes), then show and keep the new one."""
         s = self.session
         call = self.app.call_from_thread
         try:
             if s.voyage is None:
                 raise PassagelogError("no voyage is open")
-            book = s.logbook  # this worker thread's own connection
-            key = rd.stamp(derived.content_stamp(book, s.voyage.voyage_id), {})
+            key = rd.current_key(s)
             if key == self._shown_key and not force:
                 return
             if not force:
-                kept = derived.read_result(book, s.voyage.voyage_id, rd.KIND)
-                summary = rd.decode(kept.data) if kept is not None else None
-                if summary is not None and kept.stamp == key:
-                    call(self._show, summary, key, None)
+                kept = rd.read_kept(s)
+                if kept is not None and kept[1] == key:
+                    call(self._show, kept[0], key)
                     return
-                if summary is not None:
-                    call(self._show, summary, None, None)
-                    call(self._head, self._head_text(summary) + "  [b]Updating:[/b] the logbook "
-                         f"has changed since this review ({fmt.utc_time(kept.written_utc)}); "
+                if kept is not None:
+                    call(self._show, kept[0], None)
+                    call(self._head, self._head_text(kept[0]) + "  [b]Updating:[/b] the "
+                         f"logbook has changed since this review ({fmt.utc_time(kept[2])}); "
                          "reconciling…")
                 else:
                     call(self._head, "Reconciling the voyage…")
-            review = self._reconcile()
-            summary = rd.summarize(review)
-            try:
-                derived.write_result(book, s.voyage.voyage_id, rd.KIND, key, rd.encode(summary))
-            except PassagelogError:
-                pass  # kept only to open faster next time; a busy or read-only logbook is fine
+            fresh = False
+            with rd.RECONCILE_LOCK:  # nothing waits on the UI thread while holding it
+                kept = None if force else rd.read_kept(s)
+                if kept is not None and kept[1] == key:
+                    summary = kept[0]  # one started ahead of the view has just kept it
+                else:
+                    key, summary = rd.reconcile_apart(s)
+                    fresh = True
         except Exception as exc:  # noqa: BLE001 - shown in the view, never fatal
             call(self._failed, str(exc))
             return
-        call(self._show, summary, key, review)
-
-    def _reconcile(self):
-        from passagelog.review.engine import reconcile
-
-        s = self.session
-        s.reload_route()
-        if s.route is None:
-            raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
-        plan = [(t, r) for t, r in s.plan_revisions] or s.route
-        return reconcile(plan, s.fix_arrays(), zd_minutes=s.zd_minutes, entries=s.entries(),
-                         planned_departure_utc=s.voyage.departure_utc)
+        call(self._show, summary, key, fresh)
 
     def _failed(self, message: str) -> None:
         self._head(f"Cannot review: {message}")
@@ -300,11 +289,11 @@ class ReviewView(Vertical):
                 f"{_n(c['episodes'], 'episode')} outside the limits, {_n(c['gaps'], 'gap')}, "
                 f"{_n(c['suspects'], 'suspect fix', 'suspect fixes')} left out")
 
-    def _show(self, summary: ReviewSummary, key: str | None, review=None) -> None:
-        """Fill the view from ``summary``; ``key`` None marks it as older than the logbook."""
+    def _show(self, summary: ReviewSummary, key: str | None, fresh: bool = False) -> None:
+        """Fill the view from ``summary``; ``key`` None marks it as older than the logbook;
+        ``fresh``: reconciled for this showing (not kept before)."""
         self.summary = summary
-        if review is not None:
-            self.review = review
+        self.reconciled += fresh
         if key is not None:
             self._shown_key = key
             self.computed += 1

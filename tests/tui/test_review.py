@@ -43,11 +43,12 @@ async def test_review_shows_the_excursion_and_the_plots(session):
             if view.computed:
                 break
         assert view.computed == 1
-        episodes = view.review.episodes
+        assert view.reconciled == 1
+        episodes = view.summary.rows["episodes"]
         assert len(episodes) == 1
         ep = episodes[0]
-        assert (ep.leg, ep.side) == (2, "starboard")
-        assert ep.max_abs_xte_m == pytest.approx(2.5 * NM, abs=0.01)  # built at 2.5 NM
+        assert (ep["leg"], ep["side"]) == (2, "starboard")
+        assert ep["max_abs_xte_m"] == pytest.approx(2.5 * NM, abs=0.01)  # built at 2.5 NM
         table = app.query_one("#review-table-episodes")
         assert table.row_count == 1
         row = [str(c) for c in table.get_row_at(0)]
@@ -64,7 +65,8 @@ async def test_review_shows_the_excursion_and_the_plots(session):
 
 
 async def _open_review(session):
-    app = PassagelogApp(session=session, watch_poll_s=5.0)
+    # the view's own work only (not reconciled ahead of it: see test_review_prefetch.py)
+    app = PassagelogApp(session=session, watch_poll_s=5.0, prefetch_review_s=None)
     out = {}
     async with app.run_test(size=(100, 30)) as pilot:
         await pilot.press("f5")
@@ -74,7 +76,7 @@ async def _open_review(session):
             if view.computed:
                 break
         table = app.query_one("#review-table-passages")
-        out = {"computed": view.computed, "reconciled": view.review is not None,
+        out = {"computed": view.computed, "reconciled": view.reconciled > 0,
                "head": str(view.query_one("#review-head").render()),
                "passages": [[str(c) for c in table.get_row_at(i)]
                             for i in range(table.row_count)]}
