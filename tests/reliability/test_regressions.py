@@ -327,3 +327,65 @@ def test_regression_output_file_unwritable(tmp_path, small_book, command):
         relkit.check_cli_result(argv, code, out, err)
         assert code == 1 and repr(str(target))[1:-1] in err and reason in err, (argv, err)
         assert sorted(p.name for p in out_dir.iterdir()) == before, "a file was left behind"
+
+
+def test_regression_feed_writes_while_an_import_reads_its_file(tmp_path, monkeypatch):
+    # 'passagelog import' parsed its file inside its write transaction, so the feed's writes
+    # waited for the whole import (2-7 s with 200,000-line imports back to back, and past the
+    # busy timeout for larger files). Now the file is read and checked first: a feed write
+    # made while the import is still reading goes in at once (a 0.2 s busy timeout here).
+    from passagelog.errors import BusyError
+    from passagelog.formats import FixReader
+    from passagelog.model import Fix, Voyage
+    from passagelog.store import Logbook
+    from passagelog.store import logbook as lb
+
+    db = tmp_path / "book.sqlite"
+    with Logbook.open(db) as book:
+        book.add_voyage(Voyage("Live"))
+        book.add_voyage(Voyage("Import"))
+    path = tmp_path / "log.nmea"
+    path.write_text("\r\n".join(relkit.sample_nmea_lines(60)) + "\r\n", encoding="ascii")
+    monkeypatch.setattr(lb, "BUSY_TIMEOUT_S", 0.2)
+    written, refused = [], []
+    real_iter = FixReader.__iter__
+
+    def feed_meanwhile(reader):
+        for k, fix in enumerate(real_iter(reader)):
+            if k == 30:  # half way through the file: the feed logs a fix
+                try:
+                    with Logbook.open(db) as feed:
+                        written.append(feed.add_fix("Live", Fix(T0, 50.0, -1.0)).fix_id)
+                except BusyError as exc:
+                    refused.append(str(exc))
+            yield fix
+
+    monkeypatch.setattr(FixReader, "__iter__", feed_meanwhile)
+    code, _out, err = relkit.run_cli(["--db", str(db), "import", str(path), "--voyage",
+                                      "Import", "-q"])
+    assert code == 0, err
+    assert refused == [] and written == [1]  # the feed's fix went in first, at once
+    with Logbook.open(db) as book:
+        assert len(book.fixes("Live")) == 1 and len(book.fixes("Import")) == 60
+        assert book.verify().ok
+
+
+def test_regression_crash_test_kills_fall_inside_the_shortest_transaction(tmp_path):
+    # Once an import read its file before taking the write lock, its transaction became
+    # short (2-3 s for 200,000 lines) and one timed run, stretched by a busy machine, set a
+    # kill window longer than most runs' transactions: 7 of 20 kills found the import
+    # already committed. scripts/crash_test.py now times three unkilled imports and draws
+    # the kill moments inside the shortest transaction.
+    import random
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "scripts"))
+    import crash_test
+
+    result = crash_test.crash_imports(tmp_path, kills=1, lines=2_000, rng=random.Random(3),
+                                      log=lambda _t: None)
+    assert result.ok, result.problems
+    cal = result.calibration
+    assert len(cal["transactions_s"]) == crash_test.CALIBRATION_RUNS == 3
+    assert cal["transaction_s"] == min(cal["transactions_s"])
+    assert cal["transaction_s"] == pytest.approx(cal["commit_s"] - cal["begin_s"], abs=2e-3)
+    assert 0 <= result.kill_delays[0] <= cal["transaction_s"]
