@@ -77,17 +77,31 @@ def _local(tag: str) -> tuple[str, str]:
     return "", tag
 
 
-def _float(text: str | None) -> float | None:
+def _float(text: str | None, what: str) -> float | None:
+    """``text`` as a finite number (None when absent); the ValueError names ``what``."""
     if text is None or not text.strip():
         return None
-    value = float(text)
+    try:
+        value = float(text)
+    except ValueError:
+        raise ValueError(f"{what} {text!r} is not a number") from None
     if value != value or value in (float("inf"), float("-inf")):
-        raise ValueError(f"{text!r} is not a finite number")
+        raise ValueError(f"{what} {text!r} is not a finite number")
     return value
 
 
-def _nm_to_m(text: str | None) -> float | None:
-    value = _float(text)
+def _int(text: str | None, what: str) -> int | None:
+    """``text`` as a whole number (None when absent); the ValueError names ``what``."""
+    if text is None or not text.strip():
+        return None
+    try:
+        return int(text)
+    except ValueError:
+        raise ValueError(f"{what} {text!r} is not a whole number") from None
+
+
+def _nm_to_m(text: str | None, what: str) -> float | None:
+    value = _float(text, what)
     return None if value is None else round(value * NM_M, 6)
 
 
@@ -137,6 +151,8 @@ def _events(fh: IO[bytes], name: str) -> Iterator[tuple[str, ET.Element, _Walker
         line, col = exc.position
         raise FormatError(f"not well-formed XML ({exc})",
                           where=f"{name}, line {line}, column {col + 1}") from None
+    except FormatError:  # the root check above (a ValueError too): as it is
+        raise
     except (LookupError, ValueError) as exc:  # an XML declaration naming an unreadable encoding
         raise FormatError(f"cannot be read as XML ({exc})", where=name) from None
 
@@ -154,8 +170,8 @@ def _ext(elem: ET.Element, ns: str, local: str) -> ET.Element | None:
 
 
 def _point_position(elem: ET.Element) -> tuple[float, float]:
-    lat = _float(elem.get("lat"))
-    lon = _float(elem.get("lon"))
+    lat = _float(elem.get("lat"), "lat")
+    lon = _float(elem.get("lon"), "lon")
     if lat is None or lon is None:
         raise ValueError("lat and lon attributes are required")
     return lat, lon
@@ -171,9 +187,9 @@ def _waypoint_from(elem: ET.Element, ns: str, index: int) -> Waypoint:
     ext = _ext(elem, ns, "waypoint")
     radius = rtz_id = revision = None
     if ext is not None:
-        radius = _nm_to_m(ext.get("arrivalRadiusNm"))
-        rtz_id = int(ext.get("rtzId")) if ext.get("rtzId") else None
-        revision = int(ext.get("revision")) if ext.get("revision") else None
+        radius = _nm_to_m(ext.get("arrivalRadiusNm"), "arrivalRadiusNm")
+        rtz_id = _int(ext.get("rtzId"), "rtzId")
+        revision = _int(ext.get("revision"), "revision")
     return Waypoint(name or f"WP{index}", lat, lon, arrival_radius_m=radius, rtz_id=rtz_id,
                     revision=revision)
 
@@ -184,12 +200,12 @@ def _leg_from(elem: ET.Element, ns: str) -> LegPlan:
         return LegPlan()
     return LegPlan(
         sailing=ext.get("sailing", "rhumb"),
-        speed_kn=_float(ext.get("speedKn")),
-        speed_min_kn=_float(ext.get("speedMinKn")),
-        speed_max_kn=_float(ext.get("speedMaxKn")),
-        xtl_port_m=_nm_to_m(ext.get("xtlPortNm")),
-        xtl_stbd_m=_nm_to_m(ext.get("xtlStbdNm")),
-        turn_radius_m=_nm_to_m(ext.get("turnRadiusNm")),
+        speed_kn=_float(ext.get("speedKn"), "speedKn"),
+        speed_min_kn=_float(ext.get("speedMinKn"), "speedMinKn"),
+        speed_max_kn=_float(ext.get("speedMaxKn"), "speedMaxKn"),
+        xtl_port_m=_nm_to_m(ext.get("xtlPortNm"), "xtlPortNm"),
+        xtl_stbd_m=_nm_to_m(ext.get("xtlStbdNm"), "xtlStbdNm"),
+        turn_radius_m=_nm_to_m(ext.get("turnRadiusNm"), "turnRadiusNm"),
         notes=ext.get("notes", ""),
     )
 
@@ -272,14 +288,16 @@ def iter_gpx_fixes(fh: IO[bytes], name: str, summary: ReadSummary, *,
                 continue
             lat, lon = _point_position(elem)
             ext = _ext(elem, ns, "fix")
-            hdop = _float(_child_text(elem, ns, "hdop"))
+            hdop = _float(_child_text(elem, ns, "hdop"), "hdop")
             sat = _child_text(elem, ns, "sat")
             kw = {}
             if ext is not None:
                 method = ext.get("method", "gnss")
                 kw = dict(method=method if method in FIX_METHODS else "other",
-                          sog_kn=_float(ext.get("sogKn")), cog=_float(ext.get("cog")),
-                          heading=_float(ext.get("heading")), stw_kn=_float(ext.get("stwKn")),
+                          sog_kn=_float(ext.get("sogKn"), "sogKn"),
+                          cog=_float(ext.get("cog"), "cog"),
+                          heading=_float(ext.get("heading"), "heading"),
+                          stw_kn=_float(ext.get("stwKn"), "stwKn"),
                           fix_mode=ext.get("fixMode") or None, remarks=ext.get("remarks", ""))
             fix = Fix(t, lat, lon, hdop=hdop,
                       satellites=int(sat) if sat and sat.strip() else None,

@@ -68,7 +68,7 @@ def test_several_routes_need_a_name(tmp_path):
 @pytest.mark.parametrize("point, reason", [
     ('<rtept lat="95" lon="2"/>', "latitude"),
     ('<rtept lon="2"/>', "lat and lon attributes are required"),
-    ('<rtept lat="x" lon="2"/>', "could not convert"),
+    ('<rtept lat="x" lon="2"/>', "lat 'x' is not a number"),
 ])
 def test_bad_route_point_names_its_element(tmp_path, point, reason):
     path = tmp_path / "bad.gpx"

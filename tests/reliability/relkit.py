@@ -266,6 +266,11 @@ def mutate(rng: random.Random, data: bytes, rounds: int | None = None) -> bytes:
 # the checks
 
 
+#: Python's own messages for a failed conversion: they name the value, never the field.
+PYTHON_TEXTS = ("could not convert", "invalid literal", "NoneType", "has no attribute",
+                "object is not", "unsupported operand")
+
+
 class Escaped(AssertionError):
     """An exception that is not a passagelog error escaped from the library."""
 
@@ -330,6 +335,8 @@ def read_document(path: Path, tally: Tally | None = None) -> None:
             text = str(exc)
             assert text.strip() and "\n" not in text, f"not one line: {text!r}"
             assert name in text, f"error does not name the file {name!r}: {text}"
+            assert not any(raw in text for raw in PYTHON_TEXTS), \
+                f"Python's own message, naming no field: {text}"
         except Exception as exc:  # noqa: BLE001 - this is what we are hunting
             raise Escaped(f"{type(exc).__name__} escaped reading {name} as {what}: "
                           f"{exc!r:.300}") \

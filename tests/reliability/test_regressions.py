@@ -389,3 +389,32 @@ def test_regression_crash_test_kills_fall_inside_the_shortest_transaction(tmp_pa
     assert cal["transaction_s"] == min(cal["transactions_s"])
     assert cal["transaction_s"] == pytest.approx(cal["commit_s"] - cal["begin_s"], abs=2e-3)
     assert 0 <= result.kill_delays[0] <= cal["transaction_s"]
+
+
+@pytest.mark.parametrize("point, message", [
+    ('<rtept lat="0.1,0.1" lon="2"/>', "lat '0.1,0.1' is not a number"),
+    ('<rtept lat="1" lon="' + "9" * 400 + '"/>', "lon '9999"),
+    ('<rtept lat="1" lon="2"><extensions><pl:waypoint rtzId="&amp;"/></extensions></rtept>',
+     "rtzId '&' is not a whole number"),
+    ('<rtept lat="1" lon="2"><extensions><pl:leg speedKn="1 2"/></extensions></rtept>',
+     "speedKn '1 2' is not a number"),
+])
+def test_regression_gpx_bad_number_names_its_attribute(tmp_path, point, message):
+    # A GPX route point whose number could not be read gave Python's own text ("could not
+    # convert string to float: '0.1,0.1'", "invalid literal for int()"): the element was
+    # named but not the attribute. And a root element in the wrong namespace was reported
+    # as "cannot be read as XML (route.gpx: the root element is ...)".
+    from passagelog.formats.gpx import NS
+
+    head = (f'<gpx xmlns="http://www.topografix.com/GPX/1/1" xmlns:pl="{NS}" version="1.1" '
+            'creator="t"><rte><rtept lat="1" lon="1"/>')
+    path = tmp_path / "route.gpx"
+    path.write_text(head + point + "</rte></gpx>", encoding="utf-8")
+    with pytest.raises(FormatError) as exc:
+        read_routes(path)
+    assert exc.value.where == "route.gpx, element gpx/rte[1]/rtept[2]"
+    assert message in str(exc.value)
+    path.write_text('<gpx xmlns="http://www.topografix.com/GPX/-1/1"/>', encoding="utf-8")
+    with pytest.raises(FormatError) as exc:
+        read_routes(path)
+    assert str(exc.value).startswith("route.gpx: the root element is ")
