@@ -140,7 +140,7 @@ class PlanView(Vertical):
         row_now = table.cursor_row if keep_row is None else keep_row
         voyage = self.session.voyage
         departure = voyage.departure_utc if voyage else None
-        zd = self.session.zd_minutes
+        zone = self._ship_zone()
         self.figures = pr.compute(self.rows, departure) if self.rows else []
         table.clear()
         for i, (row, fig) in enumerate(zip(self.rows, self.figures)):
@@ -162,7 +162,8 @@ class PlanView(Vertical):
                 _fixed(fig.eta_utc, row.eta_utc) if leg else "",
                 (_fixed(fig.etd_utc, row.etd_utc)
                  if i == 0 or (row.etd_utc is not None and i < len(self.rows) - 1) else ""),
-                fmt.ship_time(fig.eta_utc if leg else fig.etd_utc, zd),
+                fmt.ship_time(fig.eta_utc if leg else fig.etd_utc,
+                              zone(fig.eta_utc if leg else fig.etd_utc)),
                 (f"{fig.alteration_deg:+.0f}°" if fig.alteration_deg is not None else ""),
                 fmt.nm(fig.wheel_over_m, 2) if fig.wheel_over_m is not None else "",
                 key=str(i),
@@ -170,6 +171,27 @@ class PlanView(Vertical):
         if self.rows:
             table.move_cursor(row=max(0, min(row_now, len(self.rows) - 1)))
         self.update_head()
+
+    def _ship_zone(self):
+        """The ship's zone (minutes) in force at a time: the voyage's, changed by the clock
+        changes logged at or before it (a time after the last one keeps the zone now)."""
+        from passagelog.review.inputs import clocks_from
+
+        if self.session.voyage is None:
+            return lambda t: 0
+        try:
+            clocks = clocks_from(self.session.zd_minutes, self.session.entries())
+        except PassagelogError:
+            return lambda t: self.session.zd_minutes
+        return lambda t: clocks.zd_at(t.timestamp()) if t is not None else clocks.zd_minutes[0]
+
+    def _zd_head(self) -> str:
+        """The voyage's zone, and the zone now where clock changes have moved it."""
+        first = self.session.zd_minutes
+        now = self._ship_zone()(self.session.now())
+        if now == first:
+            return fmt.zd_text(first)
+        return f"{fmt.zd_text(first)} at departure, {fmt.zd_text(now)} now"
 
     def update_head(self) -> None:
         head = self.query_one("#plan-head", Static)
@@ -197,7 +219,7 @@ class PlanView(Vertical):
         head.update(
             f"[b]{route.name if route else 'plan'}[/b] rev {rev}  {len(self.rows)} WP  "
             f"{total / NM_M:.1f} NM as planned (all GC {gc}, all RL {rl})  "
-            f"ETD {fmt.utc_time(dep)}{fixed_dep}  ZD {fmt.zd_text(voyage.zd_minutes)}"
+            f"ETD {fmt.utc_time(dep)}{fixed_dep}  ZD {self._zd_head()}"
             f"{state}"
         )
 

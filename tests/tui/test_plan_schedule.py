@@ -292,3 +292,32 @@ async def test_the_end_times_are_blank_and_not_editable(session):
         table.move_cursor(row=2)
         await pilot.pause()
         assert not etd.disabled and not eta.disabled
+
+
+async def test_ship_times_follow_the_clock_changes_logged(session):
+    """Pilot: the voyage keeps ZD +1 (conftest) until a clock change to ZD 0 logged at
+    18:00Z on the 1st; ETAs before it show ship's time at +1, those after it at 0, and the
+    head names the zone at departure and now. ZT = UTC - ZD (REFERENCE.md, Zone time);
+    leg times from geographiclib distances as above."""
+    from passagelog.model import LogEntry
+    from passagelog.tui.app import PassagelogApp
+
+    session.add_entry(LogEntry(datetime(2026, 5, 1, 18, 0, tzinfo=UTC), "clock-change",
+                               "clocks back one hour", zd_minutes=0))
+    d = _legs_m()
+    eta1 = DEP + timedelta(hours=_hours(d[0], 12))
+    eta2 = eta1 + timedelta(hours=_hours(d[1], 12))
+    assert eta1 < datetime(2026, 5, 1, 18, 0, tzinfo=UTC) < eta2
+    app = PassagelogApp(session=session, watch_poll_s=3600.0)
+    async with app.run_test(size=(100, 30)) as pilot:
+        table = app.query_one("#plan-table")
+        for _ in range(50):
+            await pilot.pause(0.02)
+            if table.row_count == 4:
+                break
+        assert table.get_cell("0", "etz") == "01 05:00 (+1)"  # the ETD: 06:00Z at +1
+        zt1 = eta1 - timedelta(hours=1)
+        assert table.get_cell("1", "etz") == zt1.strftime("%d %H:%M") + " (+1)"
+        assert table.get_cell("2", "etz") == eta2.strftime("%d %H:%M") + " (0)"
+        head = str(app.query_one("#plan-head").render())
+        assert "ZD +1 at departure, 0 now" in head
