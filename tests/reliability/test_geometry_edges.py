@@ -349,6 +349,66 @@ def test_review_with_duplicate_times_and_time_going_backwards():
         _all_finite_or_none(rv.rows(table))
 
 
+
+def test_duplicate_and_backwards_times_through_import_and_review(tmp_path):
+    # An NMEA log whose time repeats and goes back. Two sentences in a row with the same
+    # time are one epoch (the first position kept, docs/formats.md); an epoch that comes
+    # round again later is dropped and counted (repeated epoch); an earlier time after a
+    # later one (00:03 after 00:06) is kept, stored with its implied speed from the fix
+    # before it in the file over the time between them (|dt|), and the review reads the
+    # fixes in time order with finite figures.
+    import json
+    import sys
+    from pathlib import Path
+
+    from geographiclib.geodesic import Geodesic
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[2] / "scripts"))
+    sys.path.insert(0, str(Path(__file__).parent))
+    import relkit
+    import reliability_common as rc
+
+    from passagelog.formats import read_fixes
+    from passagelog.store import Logbook
+
+    db = tmp_path / "book.sqlite"
+    rc.make_logbook(db, ["V"])  # plan 50N 10W - 51N 8W - 53N 5W
+    # time, minutes of latitude north of 50N and of longitude east of 10W
+    epochs = [("000000", 0.0, 0.1), ("000600", 0.7, 1.0), ("000600", 0.9, 2.0),
+              ("000300", 0.35, 0.5), ("000600", 0.8, 1.2), ("000900", 1.05, 1.5)]
+    lines = [relkit.nmea(f"GPRMC,{t}.00,A,50{dn:06.3f},N,009{60 - de:06.3f},W,010.0,045.0,"
+                         "010526,,,A") for t, dn, de in epochs]
+    path = tmp_path / "log.nmea"
+    path.write_text("\r\n".join(lines) + "\r\n", encoding="ascii")
+    _fixes, summary = read_fixes(path)
+    assert dict(summary.dropped) == {"repeated epoch": 1} and summary.lines_used == 5
+    code, _out, err = relkit.run_cli(["--db", str(db), "import", str(path), "--voyage", "V"])
+    assert code == 0 and "6 lines read, 4 fixes kept" in err, err
+    with Logbook.open(db, create=False) as book:
+        stored = [(f.time_utc.strftime("%H%M%S"), f.lat, f.implied_speed_kn)
+                  for f in sorted(book.fixes("V"), key=lambda f: f.fix_id)]
+        assert book.verify().ok
+    assert [t for t, _, _ in stored] == ["000000", "000600", "000300", "000900"]
+    assert stored[1][1] == pytest.approx(50.0 + 0.7 / 60.0, abs=1e-12)  # the first of two
+
+    def kn(a, b, seconds):  # reference: geographiclib Inverse, WGS84
+        lat = [50.0 + epochs[i][1] / 60.0 for i in (a, b)]
+        lon = [-10.0 + epochs[i][2] / 60.0 for i in (a, b)]
+        s12 = Geodesic.WGS84.Inverse(lat[0], lon[0], lat[1], lon[1])["s12"]
+        return s12 / 1852.0 / (seconds / 3600.0)
+
+    assert stored[0][2] is None
+    assert stored[1][2] == pytest.approx(kn(0, 1, 360), rel=1e-9)
+    assert stored[2][2] == pytest.approx(kn(1, 3, 180), rel=1e-9)  # back in time: |dt|
+    assert stored[3][2] == pytest.approx(kn(3, 5, 360), rel=1e-9)
+    review = rc.run(db, "review", "V", "--table", "fixes", "--format", "json")
+    assert review.returncode == 0, review.stderr
+    rows = json.loads(review.stdout)
+    assert [r["time_utc"][11:19] for r in rows] == ["00:00:00", "00:03:00", "00:06:00",
+                                                    "00:09:00"]
+    assert [r["fix_id"] for r in rows] == [1, 3, 2, 4]
+    assert all(math.isfinite(r["xte_m"]) and math.isfinite(r["along_m"]) for r in rows)
+
 def test_review_of_a_plan_with_a_duplicate_waypoint_names_the_leg():
     dup = Route("dup", (Waypoint("A", 50.0, -1.0), Waypoint("A again", 50.0, -1.0),
                         Waypoint("B", 50.0, 0.0)), (LegPlan("rhumb", 10.0), LegPlan("rhumb", 10.0)))
