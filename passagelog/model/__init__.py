@@ -229,6 +229,32 @@ class Route:
     def leg_count(self) -> int:
         return len(self.legs)
 
+    def main_schedule_name(self) -> str:
+        """The schedule this plan runs by (a route may carry several, as an IEC 61174 route
+        file may): the one of its first manual item, else of its first item."""
+        for item in self.schedule:
+            if item.kind == "manual":
+                return item.schedule_name
+        return self.schedule[0].schedule_name if self.schedule else ""
+
+    def planned_times(self) -> tuple[tuple[datetime | None, datetime | None], ...]:
+        """``(ETA, ETD)`` at each waypoint by the main schedule, a manual time taking the
+        place of a calculated one; ``(None, None)`` where it gives none. A waypoint with both,
+        the ETD later, is a stay (at anchor, for a pilot or the tide)."""
+        main = self.main_schedule_name()
+        times: list[list] = [[None, None] for _ in self.waypoints]
+        manual: list[list[bool]] = [[False, False] for _ in self.waypoints]
+        for item in self.schedule:
+            if item.schedule_name != main:
+                continue
+            is_manual = item.kind == "manual"
+            for f, value in enumerate((item.eta_utc, item.etd_utc)):
+                i = item.waypoint_index
+                if value is not None and (is_manual or not manual[i][f]):
+                    times[i][f] = value
+                    manual[i][f] = manual[i][f] or is_manual
+        return tuple((eta, etd) for eta, etd in times)
+
     def with_changes(self, **changes: Any) -> "Route":
         return replace(self, **changes)
 

@@ -192,31 +192,60 @@ class _RoutePlan:
 
 
 def _schedule_times(rp: _RoutePlan, departure_s: float | None,
-                    given: Sequence[Any] | None) -> np.ndarray:
-    """Scheduled time at each waypoint (NaN where none): a given list, else the route's own
-    schedule, else the departure plus the planned leg times."""
+                    given: Sequence[Any] | None) -> tuple[np.ndarray, np.ndarray]:
+    """Scheduled ``(arrival, departure)`` times at each waypoint (NaN where none; the two
+    differ only at a stay): a given list (a time or an ``(ETA, ETD)`` pair per waypoint),
+    else the route's own schedule (:meth:`~passagelog.model.Route.planned_times`), else the
+    departure plus the planned leg times."""
     n = len(rp.route.waypoints)
-    out = np.full(n, np.nan)
+    arrive = np.full(n, np.nan)
+    depart = np.full(n, np.nan)
+
+    def put(i: int, eta, etd) -> None:
+        what = f"schedule time at waypoint {i + 1}"
+        a = to_seconds(eta, what) if eta is not None else None
+        d = to_seconds(etd, what) if etd is not None else None
+        if i == 0:  # the departure point: its ETD is the time that counts
+            a = d if d is not None else a
+        if a is None:
+            a = d
+        if d is None or (a is not None and d < a):
+            d = a
+        if a is not None:
+            arrive[i], depart[i] = a, d
+
     if given is not None:
         if len(given) != n:
             raise InputError(f"schedule for route {rp.route.name!r} has {len(given)} times; "
                              f"the route has {n} waypoints")
-        for i, t in enumerate(given):
-            ts = to_seconds(t, f"schedule time at waypoint {i + 1}") if t is not None else None
-            if ts is not None:
-                out[i] = ts
+        for i, item in enumerate(given):
+            eta, etd = item if isinstance(item, (tuple, list)) else (item, None)
+            put(i, eta, etd)
     elif rp.route.schedule:
-        for item in rp.route.schedule:
-            t = item.eta_utc if item.eta_utc is not None else item.etd_utc
-            if item.waypoint_index == 0 and item.etd_utc is not None:
-                t = item.etd_utc
-            if t is not None:
-                out[item.waypoint_index] = to_seconds(t)
+        for i, (eta, etd) in enumerate(rp.route.planned_times()):
+            put(i, eta, etd)
     elif departure_s is not None and np.all(np.isfinite(rp.leg_time)):
-        out = departure_s + np.concatenate([[0.0], np.cumsum(rp.leg_time)])
-    if departure_s is not None and not np.isfinite(out[0]) and np.isfinite(out).any():
-        out[0] = departure_s
-    return out
+        arrive = departure_s + np.concatenate([[0.0], np.cumsum(rp.leg_time)])
+        depart = arrive.copy()
+    if departure_s is not None and not np.isfinite(arrive[0]) and np.isfinite(arrive).any():
+        arrive[0] = depart[0] = departure_s
+    return arrive, depart
+
+
+def _delays(rp: _RoutePlan, arrive: np.ndarray, depart: np.ndarray, done: np.ndarray,
+            t: np.ndarray) -> np.ndarray:
+    """Delay (s, + behind) of fixes at ``t``, ``done`` metres along the route: the time minus
+    the schedule's time at the same distance, the schedule running from each waypoint's ETD
+    on. Near a stay's waypoint (within its skip distance) a fix between the ETA and the ETD
+    is on time, one before the ETA early and one after the ETD late by the difference."""
+    fin = np.flatnonzero(np.isfinite(arrive))
+    xs = np.repeat(rp.wp_cum[fin], 2)
+    ts = np.column_stack([arrive[fin], depart[fin]]).ravel()
+    delay = t - np.interp(done, xs, ts)  # a stay: two times at one distance
+    for w in fin[depart[fin] > arrive[fin]]:
+        near = np.abs(done - rp.wp_cum[w]) <= rp.skip[w]
+        delay[near] = t[near] - np.clip(t[near], arrive[w], depart[w])
+    return delay
 
 
 def _entry_time(entries: Iterable[LogEntry], kind: str) -> float | None:
@@ -385,8 +414,9 @@ def reconcile(plan: Route | Sequence[tuple[datetime | float | None, Route]], fix
     it. ``arrival_radius_m``: arrival circle for waypoints that have none. ``skip_distance_m``:
     a passage farther off than this is marked skipped (default: the largest cross-track limit
     or arrival radius at the waypoint, else 1 NM). ``default_speed_kn``: planned speed of
-    legs that have none. ``schedule``: scheduled time per waypoint (one list for a single
-    route, or ``{revision: list}``), overriding the route's own. ``earth``: figure for all
+    legs that have none. ``schedule``: scheduled time per waypoint, or an ``(ETA, ETD)``
+    pair where the plan stays at it (one list for a single route, or ``{revision: list}``),
+    overriding the route's own. ``earth``: figure for all
     distances (WGS84).
 
     ``detail_from_utc`` (for a watch display on a long voyage): the leg state machine still
@@ -730,13 +760,13 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
             given = schedule.get(r)
         elif schedule is not None and len(plans) == 1:
             given = schedule
-        sch = _schedule_times(rp, planned_dep_s if planned_dep_s is not None else dep_s, given)
-        scheds.append(sch)
+        arrive, depart = _schedule_times(
+            rp, planned_dep_s if planned_dep_s is not None else dep_s, given)
+        scheds.append(arrive)
         sel = (rev_of == r) & (phase == UNDER_WAY)
-        fin = np.isfinite(sch)
-        if sel.any() and fin.sum() >= 2:
+        if sel.any() and np.isfinite(arrive).sum() >= 2:
             done = np.clip(rp.total - route_to_go[sel], 0.0, rp.total)
-            delay[sel] = t[sel] - np.interp(done, rp.wp_cum[fin], sch[fin])
+            delay[sel] = _delays(rp, arrive, depart, done, t[sel])
     # set and drift (computed in the second thread)
     if currents is not None:
         set_deg, drift = currents.result()

@@ -67,11 +67,9 @@ class RowFigures:
 
 
 def main_schedule_name(route: Route) -> str:
-    """The schedule the Plan view edits: the one of the first manual item, else the first."""
-    for item in route.schedule:
-        if item.kind == "manual":
-            return item.schedule_name
-    return route.schedule[0].schedule_name if route.schedule else ""
+    """The schedule the Plan view edits: the one the plan runs by (the route's main
+    schedule)."""
+    return route.main_schedule_name()
 
 
 def rows_from_route(route: Route) -> list[PlanRow]:

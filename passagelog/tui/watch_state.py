@@ -277,15 +277,11 @@ def _departure_s(entries, first_fix_s: float) -> float:
 
 
 def _scheduled_times(route, departure_s: float) -> list | None:
-    """Planned time at each waypoint: the route's own schedule, else the departure plus the
-    planned leg times (None when a leg has no planned speed)."""
+    """Planned time at each waypoint: the route's own schedule (an ``(ETA, ETD)`` pair per
+    waypoint, as the engine takes it), else the departure plus the planned leg times (None
+    when a leg has no planned speed)."""
     if route.schedule:
-        out: list = [None] * len(route.waypoints)
-        for item in route.schedule:
-            t = item.etd_utc if (item.waypoint_index == 0 and item.etd_utc) else (
-                item.eta_utc or item.etd_utc)
-            out[item.waypoint_index] = t
-        return out
+        return list(route.planned_times())
     from passagelog.nav.units import travel_seconds
 
     if not all(plan.speed_kn for plan in route.legs):

@@ -142,6 +142,80 @@ def test_eta_two_ways_and_delay_against_the_schedule():
     assert r1["eta_dest_smg_utc"] == "2026-03-01T15:00:00Z"
 
 
+def _stay_route():
+    """Two 60 NM legs due south (the ends by geographiclib's direct problem, via the core's
+    ``direct``), 10 kn; the schedule: ETD 00:00, a stay at the middle waypoint from 06:00 to
+    08:00 (ETA, ETD), ETA 14:00 at the end; manual times, as the Plan view saves them."""
+    from passagelog.model import ScheduleItem
+    from passagelog.nav.geodesic import direct
+
+    lat1, lon1, _ = direct(50.0, -10.0, 180.0, 60 * NM_M)
+    lat2, lon2, _ = direct(lat1, lon1, 180.0, 60 * NM_M)
+    base = syn.route([(50.0, -10.0), (lat1, lon1), (lat2, lon2)], speed_kn=10.0)
+    sched = (ScheduleItem(0, etd_utc=_utc(2026, 3, 1, 0)),
+             ScheduleItem(1, eta_utc=_utc(2026, 3, 1, 6), etd_utc=_utc(2026, 3, 1, 8)),
+             ScheduleItem(2, eta_utc=_utc(2026, 3, 1, 14)))
+    return base.with_changes(schedule=sched)
+
+
+def test_delay_runs_from_the_etd_after_a_stay():
+    """Plain arithmetic on the schedule: on the first leg 30 NM along at 03:00 is on time; on
+    the second leg the plan runs from the ETD (08:00) to the ETA (14:00), so 30 NM along it
+    at 11:00 is on time (taking the stay's ETA, 06:00, as the start would call it an hour
+    late); 100 m short of the middle waypoint the craft is on time from 06:00 to 08:00 (at
+    anchor as planned), early before and late after by the difference."""
+    route = _stay_route()
+    legs = syn.legs_of(route)
+    b = legs[0].distance_m - 100.0
+    samples = [(3.0, legs[0].point_at(30 * NM_M), 0.0),
+               (5.5, legs[0].point_at(b), -1800.0),   # 100 m short, half an hour early
+               (7.0, legs[0].point_at(b), 0.0),       # in the stay
+               (8.5, legs[0].point_at(b), 1800.0),    # still there half an hour after ETD
+               (11.0, legs[1].point_at(30 * NM_M), 0.0)]
+    t0 = _utc(2026, 3, 1).timestamp()
+    cols = syn.columns([t0 + h * 3600 for h, _, _ in samples], [p[0] for _, p, _ in samples],
+                       [p[1] for _, p, _ in samples])
+    fx = reconcile(route, cols).fixes
+    for i, (_h, _p, want) in enumerate(samples):
+        assert fx.delay_s[i] == pytest.approx(want, abs=1e-3), i
+
+
+def test_passage_of_a_stay_waypoint_is_measured_against_its_eta():
+    route = _stay_route()
+    legs = syn.legs_of(route)
+    t0 = _utc(2026, 3, 1).timestamp()
+    pts = [legs[0].point_at(30 * NM_M), legs[1].point_at(1000.0)]
+    rv = reconcile(route, syn.columns([t0 + 3 * 3600, t0 + 9 * 3600], [p[0] for p in pts],
+                                      [p[1] for p in pts]))
+    (passage,) = rv.passages
+    assert passage.waypoint == 2 and passage.planned_s == _utc(2026, 3, 1, 6).timestamp()
+    assert passage.delay_s == pytest.approx(3 * 3600.0)
+
+
+def test_the_plan_runs_by_one_schedule_manual_times_over_calculated():
+    """A route file may carry several named schedules, each with manual and calculated
+    times (IEC 61174; REFERENCE.md): the plan runs by the one of its first manual item; in
+    it a manual time takes the place of a calculated one; other schedules are not mixed in."""
+    from passagelog.model import ScheduleItem
+
+    base = syn.route([(50.0, -10.0), (49.0, -10.0), (48.0, -10.0)])
+    sched = (ScheduleItem(1, eta_utc=_utc(2026, 3, 1, 5), kind="calculated",
+                          schedule_name="spring tides"),
+             ScheduleItem(1, eta_utc=_utc(2026, 3, 1, 6), kind="calculated",
+                          schedule_name="main"),
+             ScheduleItem(2, eta_utc=_utc(2026, 3, 1, 12), kind="calculated",
+                          schedule_name="main"),
+             ScheduleItem(1, eta_utc=_utc(2026, 3, 1, 7), etd_utc=_utc(2026, 3, 1, 8),
+                          kind="manual", schedule_name="main"),
+             ScheduleItem(2, eta_utc=_utc(2026, 3, 1, 9), schedule_name="spring tides",
+                          kind="calculated"))
+    route = base.with_changes(schedule=sched)
+    assert route.main_schedule_name() == "main"
+    assert route.planned_times() == ((None, None),
+                                     (_utc(2026, 3, 1, 7), _utc(2026, 3, 1, 8)),
+                                     (_utc(2026, 3, 1, 12), None))
+
+
 # ------------------------------------------------------------------------ set and drift
 
 
