@@ -57,18 +57,23 @@ def zd_text(zd_minutes: int) -> str:
     return format_zd(zd_minutes)
 
 
+def _to_minute(t: datetime) -> datetime:
+    """``t`` in UTC rounded to the nearest minute (as the command line prints times)."""
+    return datetime.fromtimestamp(round(t.timestamp() / 60.0) * 60.0, timezone.utc)
+
+
 def utc_time(t: datetime | None, *, date: bool = True) -> str:
+    """``05 13:00Z``: day of the month and time in UTC, rounded to the minute."""
     if t is None:
         return DASH
-    t = t.astimezone(timezone.utc)
-    return t.strftime("%d %H:%MZ" if date else "%H:%MZ")
+    return _to_minute(t).strftime("%d %H:%MZ" if date else "%H:%MZ")
 
 
 def ship_time(t: datetime | None, zd_minutes: int, *, date: bool = True) -> str:
     """Ship's time (zone time ZT = UTC - ZD) with its zone description."""
     if t is None:
         return DASH
-    zt = t.astimezone(timezone.utc) - timedelta(minutes=zd_minutes)
+    zt = _to_minute(t) - timedelta(minutes=zd_minutes)
     return zt.strftime("%d %H:%M" if date else "%H:%M") + f" ({zd_text(zd_minutes)})"
 
 

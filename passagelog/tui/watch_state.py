@@ -327,9 +327,9 @@ def alerts_for(state: WatchState, now_s: float,
                                         f"{s.dtw_m / NM_M:.2f} NM{eta}", "information"))
     p = state.last_passage
     if p is not None and s.time_s - p.time_s <= settings.passed_s:
-        from datetime import timezone
+        from passagelog.tui.text import utc_time
 
-        when = datetime.fromtimestamp(p.time_s, timezone.utc).strftime("%H%MZ")
+        when = utc_time(datetime.fromtimestamp(p.time_s, timezone.utc), date=False)
         how = "arrival circle" if p.how == "arrival-circle" else "bisector"
         skipped = ", SKIPPED (passed wide)" if p.skipped else ""
         out.append(Alert("passed", f"Passed WP{p.waypoint} {p.name} at {when} ({how}){skipped}",

@@ -88,7 +88,7 @@ def figures_grid(state: WatchState) -> Table:
     grid.add_column(style="dim")
     grid.add_column()
     grid.add_row("Along leg", _nm(st.along_m), "Leg to go", _nm(st.leg_to_go_m))
-    grid.add_row(f"DTW {st.to_wp}", _nm(st.dtw_m), "BTW", fmt.course(st.btw))
+    grid.add_row(f"DTW {st.to_wp}", _nm(st.dtw_m), "BTW (GC)", fmt.course(st.btw))
     passage = state.last_passage
     if st.phase == "arrived":
         when = (fmt.utc_time(_t(passage.time_s)) if passage is not None
@@ -107,9 +107,11 @@ def figures_grid(state: WatchState) -> Table:
             grid.add_row(f"ETA {st.destination}",
                          f"{fmt.utc_time(_t(st.eta_dest_plan_s))} at plan speed",
                          "by progress", fmt.utc_time(_t(st.eta_dest_smg_s)))
-    window_h = f"{st.window_s / 3600:g} h"
+    # over the window, or over the part of it there are fixes for (early in the voyage)
+    used = st.window_s if st.window_used_s is None else min(st.window_used_s, st.window_s)
     smg = fmt.DASH if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
-    grid.add_row(f"SMG/CMG {window_h}", f"{smg} {fmt.course(st.cmg_window)}",
+    span = span_text(used)
+    grid.add_row(f"SMG/CMG {span[:-7] if span.endswith(' h 00 min') else span}", f"{smg} {fmt.course(st.cmg_window)}",
                  "Set/drift", fmt.DASH if st.drift_kn is None else
                  f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")
     if st.phase == "arrived":
@@ -162,7 +164,8 @@ class WatchView(VerticalScroll, can_focus=True):
         if counter != self._counter:
             self._counter = counter
             self.recompute()
-        else:
+        else:  # the clock moves on: the fix's age and 'no fix for too long'
+            self._draw_head()
             self._draw_alerts()
 
     def action_refresh_now(self) -> None:
@@ -201,14 +204,7 @@ class WatchView(VerticalScroll, can_focus=True):
             self._draw_alerts()
             return
         st = state.status
-        zd = state.zd_minutes
-        t = _t(st.time_s)
-        head.update(Text.assemble(
-            "Latest fix ", (fmt.utc_time(t), "bold"), f"  ship {fmt.ship_time(t, zd)}  ",
-            (fmt.position(st.lat, st.lon), "bold"),
-            ("  SUSPECT", "bold reverse") if st.suspect else "",
-            ("\n" + fix_age(st.time_s, self.session.now().timestamp()), "dim"),
-        ))
+        self._draw_head()
         sailing = state.extra.get("sailing")
         sail = {"great-circle": "  great circle", "rhumb": "  rhumb line"}.get(sailing, "")
         leg_line.update(Text.assemble(
@@ -220,6 +216,21 @@ class WatchView(VerticalScroll, can_focus=True):
         bar.port_m, bar.stbd_m = state.xtl_port_m, state.xtl_stbd_m
         figures.update(figures_grid(state))
         self._draw_alerts()
+
+    def _draw_head(self) -> None:
+        """The latest fix, its time and position, and its age by this computer's clock."""
+        state = self.state
+        if state is None or state.status is None:
+            return
+        st = state.status
+        t = _t(st.time_s)
+        self.query_one("#watch-head", Static).update(Text.assemble(
+            "Latest fix ", (fmt.utc_time(t), "bold"),
+            f"  ship {fmt.ship_time(t, state.zd_minutes)}  ",
+            (fmt.position(st.lat, st.lon), "bold"),
+            ("  SUSPECT", "bold reverse") if st.suspect else "",
+            ("\n" + fix_age(st.time_s, self.session.now().timestamp()), "dim"),
+        ))
 
     def current_alerts(self):
         if self.state is None:

@@ -339,3 +339,47 @@ def test_a_plan_revision_in_force_within_the_recent_fixes(session, monkeypatch):
         else:
             assert q[key] == e[key], key
     assert quick.xtl_port_m == exact.xtl_port_m == 926.0
+
+
+async def test_the_fix_age_and_the_made_good_span_follow_the_clock(logbook_path):
+    """With no new fix the age of the latest one goes on with the clock (it stayed at its
+    first value before); the SMG/CMG label names the span the figure was made good over
+    (30 min of fixes, not the 3 h window)."""
+    from passagelog.tui.app import PassagelogApp
+    from passagelog.tui.session import Session
+    from passagelog.tui.watch_view import figures_grid
+
+    now = [datetime(2026, 5, 2, 12, 0, tzinfo=timezone.utc)]
+    s = Session(logbook_path, clock=lambda: now[0])
+    t0 = now[0] - timedelta(minutes=5)
+    add_track(s, s.route, [(t0 - timedelta(minutes=30), 2, 100 * NM, 0.1 * NM),
+                           (t0, 2, 106 * NM, 0.3 * NM)])
+    # (no review ahead: its write to the logbook would make the Watch read it again)
+    app = PassagelogApp(session=s, watch_poll_s=0.05, prefetch_review_s=None)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.press("f4")
+        watch = app.query_one("#watch-view")
+        for _ in range(100):
+            await pilot.pause(0.05)
+            if watch.state is not None and watch.state.status is not None:
+                break
+        head = app.query_one("#watch-head")
+        assert "taken 5 min ago" in str(head.render())
+        assert "SMG/CMG 30 min" in _render(figures_grid(watch.state))
+        now[0] += timedelta(minutes=17)
+        for _ in range(40):
+            await pilot.pause(0.05)
+            if "taken 22 min ago" in str(head.render()):
+                break
+        assert "taken 22 min ago" in str(head.render())
+        assert "NO FIX for 22 min" in str(app.query_one("#watch-alerts").render())
+
+
+def test_times_are_rounded_to_the_minute_as_the_command_line_prints_them():
+    """12:59:47.8Z is 13:00Z on screen, as in 'passagelog status' (its _when rounds)."""
+    from passagelog.tui import text as fmt
+
+    t = datetime(2026, 5, 5, 12, 59, 47, 800000, tzinfo=timezone.utc)
+    assert fmt.utc_time(t) == "05 13:00Z"
+    assert fmt.ship_time(t, 60) == "05 12:00 (+1)"
+    assert fmt.utc_time(t - timedelta(seconds=20)) == "05 12:59Z"
