@@ -11,6 +11,13 @@ Accepted on input (case-insensitive hemisphere letters, any spacing)::
     47.6085N 122.3351W           decimal degrees with hemisphere letters
     47 122                       bare numbers only: the first half latitude, the rest longitude
 
+Hemispheres: a coordinate with neither a hemisphere letter nor a sign is north or east, as in
+signed decimal degrees (``-33.9 18.4``, ``47 122``), but only when the position has no letter
+at all. When one coordinate carries a letter, the other must carry a letter (or a sign):
+``38 12.5N 10 06.1`` is refused, never read as 10°06.1'E, since a navigator who writes N on
+the latitude and forgets W on the longitude would otherwise get a position on the other side
+of the prime meridian.
+
 Degree signs: ``°`` ``º`` ``˚`` ``d`` ``deg``; minute signs: ``'`` ``′`` ``’`` ``‘`` ``´`` `````;
 second signs: ``"`` ``″`` ``”`` ``“`` ``''`` ``′′``; minus: ``-`` ``−`` ``–``. Only the last
 component may carry a decimal fraction. A comma, semicolon or slash may stand between latitude
@@ -68,10 +75,20 @@ class _Coord:
     sign: str | None = None
     parts: list[tuple[str, int]] = field(default_factory=list)  # (digits, role)
     trail_hemi: str | None = None
+    start: int | None = None  # where it is written in the text: text[start:end]
+    end: int = 0
 
     @property
     def hemi(self) -> str | None:
         return self.lead_hemi or self.trail_hemi
+
+    def reach(self, start: int, end: int) -> None:
+        """Take the token at text[start:end] into the written extent."""
+        self.start = start if self.start is None else min(self.start, start)
+        self.end = max(self.end, end)
+
+    def written(self, text: str) -> str:
+        return text[self.start:self.end] if self.start is not None else ""
 
     def next_role(self) -> int | None:
         """The role a bare number would take next, or None when no more can follow."""
@@ -88,7 +105,8 @@ def _fail(text: str, why: str, what: str = "position") -> PositionError:
 
 
 def _tokens(text: str):
-    """(kind, value, preceded_by_space) for each token; whitespace is folded into the flag."""
+    """(kind, value, preceded_by_space, start, end) for each token; whitespace is folded into
+    the flag."""
     spaced = True
     for m in _TOKEN.finditer(text):
         kind = m.lastgroup
@@ -96,7 +114,7 @@ def _tokens(text: str):
         if kind == "space":
             spaced = True
             continue
-        yield kind, value, spaced
+        yield kind, value, spaced, m.start(), m.end()
         spaced = False
 
 
@@ -133,18 +151,18 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
 
     # "47d36.512" or "47deg 36.512": a degree sign spelt with letters right after a number
     for k in range(1, len(toks)):
-        kind, value, spaced = toks[k]
+        kind, value, spaced, start, end = toks[k]
         if (kind == "word" and value.lower() in ("d", "deg") and not spaced
                 and toks[k - 1][0] == "number"):
-            toks[k] = ("deg", value, spaced)
+            toks[k] = ("deg", value, spaced, start, end)
 
-    for kind, value, _ in toks:
+    for kind, value, *_ in toks:
         if kind == "word" and value.lower() in ("nan", "inf", "infinity"):
             raise fail(text, f"{value!r} is not a finite number")
 
     i = 0
     while i < len(toks):
-        kind, value, spaced = toks[i]
+        kind, value, spaced, start, end = toks[i]
         nxt = toks[i + 1] if i + 1 < len(toks) else None
         if kind == "number":
             role = cur.next_role()
@@ -171,6 +189,7 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
                 close()
                 role = 0
             cur.parts.append((value, role))
+            cur.reach(start, toks[i][4])  # the number and its sign, if any
         elif kind in _ROLE_OF_SIGN:
             raise fail(text, f"{value!r} does not follow a number")
         elif kind == "word":
@@ -182,10 +201,12 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
                         raise fail(text, f"a sign ({cur.sign}) and a hemisphere letter "
                                          f"({hemi}) together; write one or the other")
                     cur.trail_hemi = hemi
+                    cur.reach(start, end)
                     close()
                 else:
                     close()
                     cur.lead_hemi = hemi
+                    cur.reach(start, end)
             else:
                 raise fail(text, f"unexpected {value!r}; expected numbers, degree, minute "
                                  "and second signs and hemisphere letters N S E W")
@@ -206,6 +227,7 @@ def _read_coords(text: str, what: str) -> tuple[list[_Coord], list[int]]:
                 if not nxt or nxt[0] != "number" or nxt[2]:
                     raise fail(text, f"sign {value!r} is not followed by a number")
                 cur.sign = sign
+                cur.reach(start, end)
         elif kind == "comma":
             close()
             commas.append(len(coords))
@@ -296,11 +318,12 @@ def parse_position(text: str) -> tuple[float, float]:
     coords, commas = _read_coords(text, "position")
     if isinstance(text, str):
         toks = list(_tokens(text))
-        if len(toks) in (2, 4, 6) and all(kind == "number" for kind, _, _ in toks):
+        if len(toks) in (2, 4, 6) and all(tok[0] == "number" for tok in toks):
             # bare numbers only ("47 122", "47 36.5 122 20.1"): half for each coordinate
             half = len(toks) // 2
-            coords = [_Coord(parts=[(v, r) for r, (_, v, _) in enumerate(toks[:half])]),
-                      _Coord(parts=[(v, r) for r, (_, v, _) in enumerate(toks[half:])])]
+            coords = [_Coord(parts=[(tok[1], r) for r, tok in enumerate(part)],
+                             start=part[0][3], end=part[-1][4])
+                      for part in (toks[:half], toks[half:])]
             for c in coords:
                 for digits, _ in c.parts[:-1]:
                     if "." in digits:
@@ -314,7 +337,47 @@ def parse_position(text: str) -> tuple[float, float]:
     first, second = coords
     if first.hemi in ("E", "W") and second.hemi in ("N", "S"):
         raise _fail(text, "the latitude (N or S) must come first")
-    return _value(text, first, "lat", "position"), _value(text, second, "lon", "position")
+    lat = _value(text, first, "lat", "position")
+    lon = _value(text, second, "lon", "position")
+    gap = _hemisphere_gap(first, second)
+    if gap is not None:
+        coord = first if gap == "lat" else second
+        raise _fail(text, _no_hemisphere(gap, coord.written(text)))
+    return lat, lon
+
+
+def _hemisphere_gap(lat: _Coord, lon: _Coord) -> str | None:
+    """``"lat"`` or ``"lon"``: the coordinate that has neither a hemisphere letter nor a sign
+    while the other has a letter (it may not be taken as north or east); else None."""
+    if lat.hemi and not (lon.hemi or lon.sign):
+        return "lon"
+    if lon.hemi and not (lat.hemi or lat.sign):
+        return "lat"
+    return None
+
+
+def _no_hemisphere(axis: str, written: str) -> str:
+    if axis == "lat":
+        return (f"latitude {written!r} has no hemisphere: add N or S (the longitude has one, "
+                "so a latitude without a letter or a sign is not taken as north)")
+    return (f"longitude {written!r} has no hemisphere: add E or W (the latitude has one, "
+            "so a longitude without a letter or a sign is not taken as east)")
+
+
+def hemisphere_gap(lat_text: str, lon_text: str) -> tuple[str, str] | None:
+    """For a latitude and a longitude written apart (two cells of a row), the rule of
+    :func:`parse_position`: when one carries a hemisphere letter and the other has neither a
+    letter nor a sign, ``("lat" or "lon", why)`` names the one refused; else None.
+
+    Each text is expected to read on its own (:func:`parse_lat`, :func:`parse_lon`)."""
+    lat, _ = _read_coords(lat_text, "latitude")
+    lon, _ = _read_coords(lon_text, "longitude")
+    if len(lat) != 1 or len(lon) != 1:
+        return None
+    gap = _hemisphere_gap(lat[0], lon[0])
+    if gap is None:
+        return None
+    return gap, _no_hemisphere(gap, (lat_text if gap == "lat" else lon_text).strip())
 
 
 # ---------------------------------------------------------------------------------------------

@@ -87,6 +87,14 @@ def test_position_json_antimeridian_is_folded():
         ("47N", "passagelog: cannot read position '47N': expected a latitude and a "
                 "longitude, found 1 coordinate\n"),
         ("nan 0", "passagelog: cannot read position 'nan 0': 'nan' is not a finite number\n"),
+        # N on the latitude and no W on the longitude: refused, not read as east
+        ("38 12.5N 10 06.1", "passagelog: cannot read position '38 12.5N 10 06.1': "
+                             "longitude '10 06.1' has no hemisphere: add E or W (the latitude "
+                             "has one, so a longitude without a letter or a sign is not taken "
+                             "as east)\n"),
+        ("50 00.6 4 18.8W", "passagelog: cannot read position '50 00.6 4 18.8W': latitude "
+                            "'50 00.6' has no hemisphere: add N or S (the longitude has one, so "
+                            "a latitude without a letter or a sign is not taken as north)\n"),
     ],
 )
 def test_position_bad_input_exits_1(text, message):

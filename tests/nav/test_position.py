@@ -20,6 +20,7 @@ from passagelog.nav.position import (
     format_lat,
     format_lon,
     format_position,
+    hemisphere_gap,
     parse_lat,
     parse_lon,
     parse_position,
@@ -240,6 +241,97 @@ def test_any_text_gives_a_position_or_a_position_error(text):
 def test_rejects_non_text():
     with pytest.raises(PositionError, match="must be text"):
         parse_position(47.6)  # type: ignore[arg-type]
+
+
+# ------------------------------------------------------------------------------------------
+# hemispheres: a letter on one coordinate and neither a letter nor a sign on the other is
+# refused (a forgotten W must not become E); without letters, signs alone are the convention
+
+
+@pytest.mark.parametrize(
+    "text, axis, written",
+    [
+        ("38 12.5N 10 06.1", "longitude", "10 06.1"),  # tester's report: was 010°06.100'E
+        ("50 00.6N 4 18.8", "longitude", "4 18.8"),  # tester's report: was 004°18.800'E
+        ("47°36.512'N 122°20.107'", "longitude", "122°20.107'"),
+        ("N47°36.512' 122°20.107'", "longitude", "122°20.107'"),
+        ("47 36.512N, 122 20.107", "longitude", "122 20.107"),
+        ("38 12.5N 10-06.1", "longitude", "10-06.1"),  # a dash is not a sign
+        ("47.6085N 122.3351", "longitude", "122.3351"),
+        ("38N 10", "longitude", "10"),
+        ("47 36.512 122 20.107W", "latitude", "47 36.512"),
+        ("47°36.512' 122°20.107'W", "latitude", "47°36.512'"),
+        ("47.6085 122.3351E", "latitude", "47.6085"),
+    ],
+)
+def test_a_coordinate_without_a_hemisphere_beside_one_with_a_letter_is_refused(text, axis,
+                                                                              written):
+    with pytest.raises(PositionError) as info:
+        parse_position(text)
+    message = str(info.value)
+    assert repr(text) in message
+    letters, other = ("E or W", "latitude") if axis == "longitude" else ("N or S", "longitude")
+    assert f"{axis} {written!r} has no hemisphere: add {letters} (the {other} has one" in message
+
+
+@pytest.mark.parametrize(
+    "text, lat, lon",
+    [
+        # signed or bare, no letter anywhere: north and east positive (ISO 6709 signs)
+        ("-33.9 18.4", -33.9, 18.4),
+        ("47.6085, -122.3351", 47.6085, -122.3351),
+        ("47.6085 -122.3351", 47.6085, -122.3351),
+        ("-33 52.4 151 12.9", -(33 + 52.4 / 60), 151 + 12.9 / 60),
+        ("47 122", 47.0, 122.0),
+        # a letter on one coordinate and a sign on the other: both are given
+        ("38 12.5N -10 06.1", 38 + 12.5 / 60, -(10 + 6.1 / 60)),
+        ("38 12.5N +10 06.1", 38 + 12.5 / 60, 10 + 6.1 / 60),
+        ("-38 12.5 10 06.1W", -(38 + 12.5 / 60), -(10 + 6.1 / 60)),
+        # letters on both
+        ("38 12.5N 10 06.1W", 38 + 12.5 / 60, -(10 + 6.1 / 60)),
+        ("50 00.6N 4 18.8W", 50 + 0.6 / 60, -(4 + 18.8 / 60)),
+    ],
+)
+def test_hemispheres_given_or_signed_are_read(text, lat, lon):
+    got_lat, got_lon = parse_position(text)
+    assert got_lat == pytest.approx(lat, abs=EXACT)
+    assert got_lon == pytest.approx(lon, abs=EXACT)
+
+
+@settings(max_examples=300, deadline=None)
+@given(st.floats(min_value=-90.0, max_value=90.0, allow_nan=False),
+       st.floats(min_value=-180.0, max_value=180.0, exclude_max=True, allow_nan=False),
+       st.sampled_from(["dm", "dms"]), st.booleans(), st.booleans())
+def test_a_printed_position_missing_one_letter_is_refused(lat, lon, style, ascii, drop_lon):
+    # "05°03.10'S 004°01.00'W", "05 03.10S 004 01.00W": the latitude is the first half
+    words = format_position(lat, lon, style, 2, ascii).split(" ")
+    half = len(words) // 2
+    lat_text, lon_text = " ".join(words[:half]), " ".join(words[half:])
+    if drop_lon:
+        lon_text = lon_text[:-1]
+    else:
+        lat_text = lat_text[:-1]
+    with pytest.raises(PositionError, match="has no hemisphere"):
+        parse_position(f"{lat_text} {lon_text}")
+
+
+@pytest.mark.parametrize(
+    "lat_text, lon_text, gap",
+    [
+        ("50 42.000 N", "1 05.0", ("lon", "longitude '1 05.0' has no hemisphere: add E or W")),
+        ("50 42.000", "1 05.0W", ("lat", "latitude '50 42.000' has no hemisphere: add N or S")),
+        ("50 42.000 N", "1 05.0 W", None),
+        ("50 42.000 N", "-1.05", None),
+        ("50.7", "-1.05", None),
+        ("-50.7", "1.05", None),
+    ],
+)
+def test_hemisphere_gap_of_a_latitude_and_a_longitude_written_apart(lat_text, lon_text, gap):
+    got = hemisphere_gap(lat_text, lon_text)
+    if gap is None:
+        assert got is None
+    else:
+        assert got[0] == gap[0] and got[1].startswith(gap[1])
 
 
 # ------------------------------------------------------------------------------------------
