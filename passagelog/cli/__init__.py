@@ -59,9 +59,12 @@ class LazyGroup(click.Group):
 @click.option("--debug", is_flag=True, help="Show the full traceback when something fails.")
 @click.option("--db", "db_path", metavar="PATH", envvar="PASSAGELOG_DB",
               help="Logbook file (default: PASSAGELOG_DB, else the user data directory).")
+@click.option("--voyage", "tui_voyage", metavar="VOYAGE",
+              help="With no command: open the terminal UI on this voyage (name or id; "
+                   "default: the most recent).")
 @click.version_option(__version__, prog_name="passagelog")
 @click.pass_context
-def cli(ctx: click.Context, debug: bool, db_path: str | None) -> None:
+def cli(ctx: click.Context, debug: bool, db_path: str | None, tui_voyage: str | None) -> None:
     """passagelog: keep a passage plan, log fixes, watch cross-track error and ETA,
     and review the voyage afterwards.
 
@@ -74,6 +77,10 @@ def cli(ctx: click.Context, debug: bool, db_path: str | None) -> None:
     ctx.ensure_object(dict)
     ctx.obj["debug"] = debug
     ctx.obj["db_path"] = db_path
+    if tui_voyage is not None and ctx.invoked_subcommand is not None:
+        raise click.UsageError("--voyage before a command only chooses the voyage the "
+                               "terminal UI opens; give the command its own --voyage")
+    ctx.obj["tui_voyage"] = tui_voyage
     if ctx.invoked_subcommand is None:
         from passagelog.cli.common import open_tui
 

@@ -207,7 +207,16 @@ def open_tui(ctx: click.Context) -> None:
         raise click.UsageError(
             "the terminal UI is not available in this build; see 'passagelog --help'"
         ) from exc
-    run_app(db_path_from(ctx))
+    voyage = (ctx.obj or {}).get("tui_voyage")
+    if voyage is not None:  # named: check it before the screen is taken over
+        from passagelog.store import Logbook  # noqa: PLC0415
+
+        path = db_path_from(ctx)
+        if not Path(path).exists():
+            raise click.UsageError(f"logbook {str(path)!r} does not exist")
+        with Logbook.open(path, create=False) as book:
+            voyage = book.voyage(voyage).voyage_id
+    run_app(db_path_from(ctx), voyage=voyage)
 
 
 TABLE_FORMATS = ("table", "csv", "json", "md")

@@ -10,7 +10,12 @@ from pathlib import Path
 
 
 def run_app(db_path: str | Path, *, voyage: str | int | None = None) -> None:
-    """Open the terminal UI on the logbook at ``db_path`` (blocks until the user quits)."""
-    from passagelog.tui.app import PassagelogApp
+    """Open the terminal UI on the logbook at ``db_path`` (blocks until the user quits);
+    when the user opens another voyage (Ctrl+O), the app starts again on it."""
+    from passagelog.tui.app import OpenVoyage, PassagelogApp
 
-    PassagelogApp(db_path, voyage=voyage).run()
+    while True:
+        result = PassagelogApp(db_path, voyage=voyage).run()
+        if not isinstance(result, OpenVoyage):
+            return
+        voyage = result.voyage_id

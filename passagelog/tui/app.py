@@ -14,6 +14,14 @@ from textual.widgets import Footer, Header, TabbedContent, TabPane
 
 from passagelog.tui.session import Session, system_clock
 
+
+class OpenVoyage:
+    """What the app returns when the user chose another voyage: :func:`run_app` opens the
+    app again on it (every view starts afresh on the new voyage)."""
+
+    def __init__(self, voyage_id: int) -> None:
+        self.voyage_id = voyage_id
+
 VIEWS = (
     ("plan", "Plan", "f2"),
     ("log", "Log", "f3"),
@@ -41,6 +49,7 @@ class PassagelogApp(App):
         Binding("f4", "view('watch')", "Watch", show=False),
         Binding("f5", "view('review')", "Review", show=False),
         Binding("f9", "toggle_dark", "Light/Dark", show=False),
+        Binding("ctrl+o", "voyages", "Voyages", show=False),
         Binding("ctrl+q", "quit", "Quit", priority=True, show=False),
     ]
 
@@ -105,6 +114,8 @@ class PassagelogApp(App):
         self.sub_title = (f"{voyage.name}  {self.session.db_path.name}" if voyage
                           else f"no voyage  {self.session.db_path.name}")
         self.call_after_refresh(self._focus_view)
+        if voyage is None:  # a new logbook: what to do first
+            self.call_after_refresh(self.action_voyages)
         if self.prefetch_review_s is not None and self.session.voyage is not None:
             self.set_timer(self.prefetch_review_s, self._prefetch_review)
 
@@ -133,6 +144,45 @@ class PassagelogApp(App):
         await self.action_view(self.query_one("#views", TabbedContent).active or "plan")
 
     # --- actions ---
+    def _unsaved_plan(self) -> bool:
+        plan = self.query("#plan-view")
+        return bool(plan) and plan.first().dirty
+
+    async def _confirm_losing_edits(self, then: str) -> bool:
+        """True when there is no unsaved plan edit, or the user lets it go."""
+        from passagelog.tui.confirm_dialog import ConfirmDialog
+
+        if not self._unsaved_plan():
+            return True
+        return bool(await self.push_screen_wait(ConfirmDialog(
+            "The plan has edits not saved",
+            f"{then} loses them. Go back and save them with Ctrl+S in Plan (F2), or let "
+            "them go.", f"{then} without saving")))
+
+    def action_quit(self) -> None:
+        self.run_worker(self._quit(), exclusive=True, group="quit")
+
+    async def _quit(self) -> None:
+        if await self._confirm_losing_edits("Quitting"):
+            self.exit()
+
+    def action_voyages(self) -> None:
+        """Ctrl+O: open another voyage of the logbook, or start a new one."""
+        from passagelog.tui.voyage_dialog import VoyageDialog
+
+        if isinstance(self.screen, VoyageDialog):
+            return
+
+        async def chosen(voyage_id: int | None) -> None:
+            open_id = self.session.voyage.voyage_id if self.session.voyage else None
+            if voyage_id is None or voyage_id == open_id:
+                return
+            if await self._confirm_losing_edits("Opening another voyage"):
+                self.exit(result=OpenVoyage(voyage_id))
+
+        self.push_screen(VoyageDialog(self.session),
+                         lambda v: self.run_worker(chosen(v), group="voyages"))
+
     def action_help(self) -> None:
         from passagelog.tui.help_screen import HelpScreen
 
@@ -165,6 +215,9 @@ class PassagelogApp(App):
                                 lambda k=key: self.action_view(k))
         yield SystemCommand("Light or dark", "Switch between the light and dark look (F9)",
                             self.action_toggle_dark)
+        yield SystemCommand("Voyages: open or start one",
+                            "Open another voyage of this logbook, or start a new one (Ctrl+O)",
+                            self.action_voyages)
         plan = (
             ("Plan: edit waypoint", "edit", "Edit the selected waypoint and its leg (Enter)"),
             ("Plan: insert waypoint", "insert", "Insert a waypoint after the selected one (Ins)"),

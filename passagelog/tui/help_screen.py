@@ -37,7 +37,8 @@ VIEW_TEXT = {
 ACTION_TEXT = {
     ("PassagelogApp", "help"): "this help (Esc closes it)",
     ("PassagelogApp", "toggle_dark"): "light / dark",
-    ("PassagelogApp", "quit"): "quit",
+    ("PassagelogApp", "quit"): "quit (asks first when the plan has edits not saved)",
+    ("PassagelogApp", "voyages"): "open another voyage of this logbook, or start a new one",
     ("PlanView", "edit"): "edit the selected waypoint and the leg ending at it",
     ("PlanView", "insert"): "insert a waypoint after the selected one",
     ("PlanView", "delete"): "delete the selected waypoint",
@@ -47,6 +48,8 @@ ACTION_TEXT = {
     ("PlanView", "undo"): "undo the last edit",
     ("PlanView", "times"): "to the fixed ETA / ETD fields of the selected waypoint (UTC)",
     ("PlanView", "save"): "save the edits as a new revision (asks for a change note)",
+    ("PlanView", "leave_editor"):
+        "from the editor back to the table (a value not taken is put back)",
     ("LogView", "record"): "log the fix in the form (on the Entries tab: add the log entry)",
     ("LogView", "goto_time"): "go to a time (UTC) in the fix list",
     ("LogView", "switch_focus"): "move between the form and the list under it",
@@ -61,6 +64,9 @@ ACTION_TEXT = {
     ("CorrectionDialog", "cancel"): "cancel (nothing is written)",
     ("GoToTimeDialog", "cancel"): "cancel (nothing is written)",
     ("ChangeNoteDialog", "cancel"): "cancel (nothing is written)",
+    ("VoyageDialog", "cancel"): "cancel (nothing is written)",
+    ("NewVoyageDialog", "cancel"): "cancel (nothing is written)",
+    ("ConfirmDialog", "cancel"): "cancel (nothing is written)",
 }
 
 
@@ -111,11 +117,14 @@ def sections() -> list[tuple[str, object]]:
 
 def dialog_classes() -> list:
     """The dialogs, whose keys the help lists together."""
+    from passagelog.tui.confirm_dialog import ConfirmDialog
     from passagelog.tui.correction_dialog import CorrectionDialog
     from passagelog.tui.goto_dialog import GoToTimeDialog
     from passagelog.tui.note_dialog import ChangeNoteDialog
+    from passagelog.tui.voyage_dialog import NewVoyageDialog, VoyageDialog
 
-    return [CorrectionDialog, GoToTimeDialog, ChangeNoteDialog]
+    return [CorrectionDialog, GoToTimeDialog, ChangeNoteDialog, VoyageDialog,
+            NewVoyageDialog, ConfirmDialog]
 
 
 def _table(rows: list[tuple[str, str]], head: str = "| key | action |\n| --- | --- |") -> str:
@@ -152,7 +161,8 @@ def help_text() -> str:
 
 NOTES = """\
 **Plan**: positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
-`47 36.512N 122 20.107W`, `47.6085, -122.3351`. Distances and limits are in NM, speeds in
+`47 36.512N 122 20.107W`, `47.6085, -122.3351`. Esc in the editor goes back to the table.
+Distances and limits are in NM, speeds in
 knots. Each row's leg settings describe the leg that **ends** at that waypoint.
 Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z` or
 `03 08:00Z`; empty for none. Row 1's ETD is the planned departure (it has no ETA); the last
@@ -165,6 +175,9 @@ latest fix is on screen the list follows new ones (from the feed or another term
 they are logged, and the cursor stays on its fix.
 
 **Watch** follows new fixes by itself.
+
+**Voyages**: Ctrl+O lists the voyages of this logbook (open one, or start a new one with its
+craft, planned departure and zone); the app then starts afresh on it.
 """
 
 

@@ -437,6 +437,21 @@ def parse_nm(text: str, what: str) -> float | None:
     return None if v is None else v * NM_M
 
 
+def parse_limit(text: str, what: str) -> float | None:
+    """A cross-track limit in NM (more than 0; an empty field: no limit on that side)."""
+    v = parse_nm(text, what)
+    if v is not None and v <= 0.0:
+        raise InputError(f"{what} must be more than 0 NM (leave it empty for no limit)")
+    return v
+
+
+def first_rows(lat: float = 0.0, lon: float = 0.0) -> list[PlanRow]:
+    """A new plan's first two rows, the departure and the destination, to be edited: at
+    ``lat``/``lon`` (the latest fix, say) and one degree of latitude north of it."""
+    return [PlanRow(name="Departure", lat=lat, lon=lon),
+            PlanRow(name="Destination", lat=min(89.0, lat + 1.0), lon=lon)]
+
+
 def parse_sailing(text: str) -> str:
     t = text.strip().lower().replace(" ", "-")
     aliases = {"gc": "great-circle", "great-circle": "great-circle", "rl": "rhumb",

@@ -78,6 +78,7 @@ class PlanView(Vertical):
         Binding("ctrl+z", "undo", "Undo", show=False),
         Binding("ctrl+t", "times", "Times"),
         Binding("ctrl+s", "save", "Save"),
+        Binding("escape", "leave_editor", "Back to the table", show=False),
     ]
 
     class Saved(Message):
@@ -93,6 +94,7 @@ class PlanView(Vertical):
         self.rows: list[pr.PlanRow] = []
         self.figures: list[pr.RowFigures] = []
         self.history: list[list[pr.PlanRow]] = []
+        self.saved_rows: list[pr.PlanRow] = []  # as the revision in force has them
         self.dirty = False
         self._loading = False
         self._editor_row = -1
@@ -107,8 +109,9 @@ class PlanView(Vertical):
                 yield Label(label, classes="field-label")
                 yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
             yield Label("Sailing", classes="field-label")
-            yield Select(SAILING_CHOICES, id="plan-sailing", allow_blank=False,
-                         value="rhumb", compact=True)
+            # blank at row 1 only: the departure point ends no leg
+            yield Select(SAILING_CHOICES, id="plan-sailing", allow_blank=True,
+                         prompt="(no leg)", value="rhumb", compact=True)
             for fid, label, placeholder in FIELDS[2:]:
                 yield Label(label, classes="field-label")
                 yield Input(placeholder=placeholder, id=f"plan-{fid}", compact=True)
@@ -128,6 +131,7 @@ class PlanView(Vertical):
     def load(self) -> None:
         route = self.session.route
         self.rows = pr.rows_from_route(route) if route is not None else []
+        self.saved_rows = [pr.PlanRow(**vars(r)) for r in self.rows]
         self.history.clear()
         self.dirty = False
         self.refresh_table()
@@ -198,11 +202,12 @@ class PlanView(Vertical):
         route = self.session.route
         voyage = self.session.voyage
         if voyage is None:
-            head.update("No voyage in this logbook yet. Make one with the command line "
-                        "(see 'passagelog --help'), or open the demo: 'passagelog demo'.")
+            head.update("No voyage is open. Ctrl+O opens one of this logbook or starts a "
+                        "new one (or try the demo: 'passagelog demo').")
             return
         if route is None and not self.rows:
-            head.update(f"Voyage {voyage.name}: no plan yet.")
+            head.update(f"Voyage {voyage.name}: no plan yet. Ins starts one (or import a "
+                        "route file: 'passagelog import --help').")
             return
         total = self.figures[-1].cumulative_m if self.figures else 0.0
         def total_of(attr: str) -> str:
@@ -247,7 +252,8 @@ class PlanView(Vertical):
                 field = self.query_one(f"#plan-{fid}", Input)
                 field.value = value
                 field.remove_class("-bad")
-            self.query_one("#plan-sailing", Select).value = row.sailing
+            self.query_one("#plan-sailing", Select).value = (row.sailing if i > 0
+                                                             else Select.NULL)
             leg_fields = ("speed", "xtl_port", "xtl_stbd", "turn")
             for fid in leg_fields:
                 self.query_one(f"#plan-{fid}", Input).disabled = i == 0
@@ -293,10 +299,14 @@ class PlanView(Vertical):
         self.history.append([pr.PlanRow(**vars(r)) for r in self.rows])
         del self.history[:-50]
 
+    def _mark_dirty(self) -> None:
+        """Edited: unless the rows are back to what the revision in force has."""
+        self.dirty = ([vars(r) for r in self.rows] != [vars(r) for r in self.saved_rows])
+
     def _changed(self, rows: list[pr.PlanRow], cursor: int) -> None:
         self._remember()
         self.rows = rows
-        self.dirty = True
+        self._mark_dirty()
         self.refresh_table(keep_row=cursor)
         self.fill_editor(cursor)
 
@@ -343,12 +353,16 @@ class PlanView(Vertical):
         if ok:
             new.lat, new.lon = pos
         if i > 0:
-            new.sailing = self.query_one("#plan-sailing", Select).value
+            sailing = self.query_one("#plan-sailing", Select).value
+            if sailing in ("rhumb", "great-circle"):
+                new.sailing = sailing
             for fid, attr, parse in (
                 ("speed", "speed_kn", lambda t: pr.parse_optional_number(
                     t, "planned speed", unit="kn", high=1000.0)),
-                ("xtl_port", "xtl_port_m", lambda t: pr.parse_nm(t, "port cross-track limit")),
-                ("xtl_stbd", "xtl_stbd_m", lambda t: pr.parse_nm(t, "starboard cross-track limit")),
+                ("xtl_port", "xtl_port_m",
+                 lambda t: pr.parse_limit(t, "port cross-track limit")),
+                ("xtl_stbd", "xtl_stbd_m",
+                 lambda t: pr.parse_limit(t, "starboard cross-track limit")),
                 ("turn", "turn_radius_m", lambda t: pr.parse_nm(t, "turn radius")),
             ):
                 value, ok = take(fid, parse)
@@ -373,7 +387,7 @@ class PlanView(Vertical):
         if changed:
             self._remember()
             self.rows[i] = new
-            self.dirty = True
+            self._mark_dirty()
             self.refresh_table(keep_row=i)
         if errors:
             message.update("[b]Not taken:[/b] " + "; ".join(errors))
@@ -395,11 +409,30 @@ class PlanView(Vertical):
             fid = "etd" if self._editor_row == 0 else "eta"
             self.query_one(f"#plan-{fid}", Input).focus()
 
+    def action_leave_editor(self) -> None:
+        """Esc in the editor: back to the table, the fields showing the row as it stands
+        (a value not taken is dropped)."""
+        table = self.query_one("#plan-table", DataTable)
+        if self.rows and not table.has_focus:
+            self.fill_editor(self._editor_row)
+            table.focus()
+
     def action_insert(self) -> None:
-        if self.rows:
-            i = self.selected()
-            self._changed(pr.insert_after(self.rows, i), i + 1)
-            self.notify(f"Inserted {self.rows[i + 1].name} after row {i + 1}; edit it below.")
+        if self.session.voyage is None:
+            self.notify("No voyage is open: Ctrl+O opens or starts one.", severity="warning")
+            return
+        if not self.rows:  # a voyage with no plan yet: its first two waypoints
+            latest = self.session.latest_fix()
+            start = (latest.lat, latest.lon) if latest is not None else (0.0, 0.0)
+            self._changed(pr.first_rows(*start), 0)
+            self.query_one("#plan-editor").display = True
+            self.query_one("#plan-times").display = True
+            self.notify("A new plan: type the departure and destination positions (Enter "
+                        "edits a row), insert more waypoints, then Ctrl+S saves it.")
+            return
+        i = self.selected()
+        self._changed(pr.insert_after(self.rows, i), i + 1)
+        self.notify(f"Inserted {self.rows[i + 1].name} after row {i + 1}; edit it below.")
 
     def action_delete(self) -> None:
         if not self.rows:
@@ -437,7 +470,7 @@ class PlanView(Vertical):
     def action_undo(self) -> None:
         if self.history:
             self.rows = self.history.pop()
-            self.dirty = True
+            self._mark_dirty()
             self.refresh_table()
             self.fill_editor()
         else:
@@ -451,6 +484,13 @@ class PlanView(Vertical):
             return
         if not self.dirty:
             self.notify("No changes to save.")
+            return
+        bad = [w for w in self.query("#plan-editor Input, #plan-times Input")
+               if w.has_class("-bad")]
+        if bad:
+            self.notify("A field under the table is not taken (marked): correct it, or Esc "
+                        "to put back the row's values, then save.", severity="error")
+            bad[0].focus()
             return
         base = self.session.route
         try:

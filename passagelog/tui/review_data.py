@@ -190,7 +190,7 @@ def reconcile_session(session):
 
     session.reload_route()
     if session.route is None:
-        raise PassagelogError("this voyage has no plan yet: make one in Plan (F2)")
+        raise PassagelogError("this voyage has no plan yet: make one in Plan (F2, then Ins)")
     plan = [(t, r) for t, r in session.plan_revisions] or session.route
     return reconcile(plan, session.fix_arrays(), zd_minutes=session.zd_minutes,
                      entries=session.entries(),

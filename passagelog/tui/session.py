@@ -52,6 +52,23 @@ class Session:
     def voyages(self) -> list[Voyage]:
         return list(self.logbook.list_voyages())
 
+    def craft_names(self) -> list[str]:
+        return [c.name for c in self.logbook.list_craft()]
+
+    def start_voyage(self, *, name: str, craft: str, from_place: str = "", to_place: str = "",
+                     departure_utc: datetime | None = None, zd_minutes: int = 0) -> Voyage:
+        """Record a new voyage of ``craft`` (by name; recorded too when the logbook does
+        not know it) in one transaction; it is not opened here."""
+        from passagelog.model import Craft
+
+        book = self.logbook
+        with book.transaction():
+            known = {c.name: c for c in book.list_craft()}
+            c = known.get(craft) or book.add_craft(Craft(craft))
+            return book.add_voyage(Voyage(name, craft_id=c.craft_id, from_place=from_place,
+                                          to_place=to_place, departure_utc=departure_utc,
+                                          zd_minutes=zd_minutes))
+
     def select_voyage(self, voyage: str | int | Voyage | None = None) -> Voyage | None:
         """Open ``voyage`` (id, name or object); by default the most recent one."""
         if isinstance(voyage, Voyage):
@@ -97,7 +114,7 @@ class Session:
         if self.voyage is None:
             from passagelog.errors import StoreError
 
-            raise StoreError("no voyage is open; create one with the command line first")
+            raise StoreError("no voyage is open: Ctrl+O opens or starts one")
         book = self.logbook
         with book.transaction():
             assignments = book.plan_assignments(self.voyage.voyage_id)

@@ -70,7 +70,7 @@ class WatchState:
     extra: dict = field(default_factory=dict)
 
 
-NO_PLAN = "This voyage has no plan yet: make one in Plan (F2)."
+NO_PLAN = "This voyage has no plan yet: make one in Plan (F2, then Ins)."
 NO_FIXES = ("No fixes yet: log one in Log (F3), or start 'passagelog feed' to log them "
             "from the GNSS.")
 

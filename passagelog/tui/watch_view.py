@@ -28,8 +28,8 @@ from passagelog.tui.watch_state import (WatchSettings, WatchState, alerts_for, r
 from passagelog.tui.xte_bar import XteBar
 
 
-NO_VOYAGE = ("No voyage in this logbook yet. Make one with the command line (see "
-             "'passagelog --help'), or open the demo: 'passagelog demo'.")
+NO_VOYAGE = ("No voyage is open. Ctrl+O opens one of this logbook or starts a new one "
+             "(or try the demo: 'passagelog demo').")
 
 
 def _t(ts: float | None) -> datetime | None:
