@@ -93,7 +93,7 @@ class NewVoyageDialog(ModalScreen[int | None]):
             with Grid(id="new-voyage-fields"):
                 for fid, label, placeholder in FIELDS:
                     yield Label(label, classes="field-label")
-                    yield Input(placeholder=placeholder, id=f"voyage-{fid}")
+                    yield Input(placeholder=placeholder, id=f"voyage-{fid}", compact=True)
             yield Static("", id="voyage-error", classes="field-error")
             with Horizontal(classes="dialog-buttons"):
                 yield Button("Start voyage", variant="primary", id="voyage-save")
