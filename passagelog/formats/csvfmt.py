@@ -33,7 +33,7 @@ from passagelog.errors import FormatError, InputError
 from passagelog.formats._common import ReadSummary, decimal_text
 from passagelog.formats.gpx import format_time, parse_time
 from passagelog.model import FIX_METHODS, SAILINGS, Fix, LegPlan, Route, Waypoint
-from passagelog.nav.position import parse_lat, parse_lon
+from passagelog.nav.position import hemisphere_gap, parse_lat, parse_lon
 from passagelog.nav.units import NM_M
 
 ROUTE_HEADER = ("name", "lat", "lon", "sailing", "speed_kn", "xtl_port_nm", "xtl_stbd_nm",
@@ -140,6 +140,11 @@ def _position(rows: _Rows, line: int, cells: dict[str, str]) -> tuple[float, flo
             out.append(parse(text))
         except InputError as exc:
             raise FormatError(exc.reason, where=rows.place(line, col)) from None
+    # a letter in one cell and neither a letter nor a sign in the other: not north or east
+    gap = hemisphere_gap(cells["lat"], cells["lon"])
+    if gap is not None:
+        col, why = gap
+        raise FormatError(why, where=rows.place(line, col))
     return out[0], out[1]
 
 

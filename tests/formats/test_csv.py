@@ -114,6 +114,36 @@ def test_fix_csv_reads_notations_zones_and_methods(tmp_path):
     assert summary.fixes_kept == 3 and summary.lines_read == 4
 
 
+@pytest.mark.parametrize("lat, lon, col, message", [
+    ("50 42.000 N", "001 03.000", "lon",
+     "longitude '001 03.000' has no hemisphere: add E or W (the latitude has one"),
+    ("50 42.000", "001 03.000 W", "lat",
+     "latitude '50 42.000' has no hemisphere: add N or S (the longitude has one"),
+])
+def test_a_position_with_one_hemisphere_letter_is_refused(tmp_path, lat, lon, col, message):
+    # a forgotten W must not become E (docs/conventions.md, Positions)
+    path = tmp_path / "r.csv"
+    path.write_text(f"name,lat,lon\nA,50.7,-1.05\nB,{lat},{lon}\n", encoding="utf-8")
+    with pytest.raises(FormatError) as exc:
+        read_route(path)
+    assert exc.value.where == f"r.csv, line 3, column {col}"
+    assert message in str(exc.value)
+    path = tmp_path / "f.csv"
+    path.write_text(f"time_utc,lat,lon\n2024-05-01T12:00:00Z,{lat},{lon}\n", encoding="utf-8")
+    with pytest.raises(FormatError) as exc:
+        read_fixes(path)
+    assert exc.value.where == f"f.csv, line 2, column {col}"
+
+
+def test_signed_cells_beside_a_letter_or_without_letters_are_read(tmp_path):
+    path = tmp_path / "r.csv"
+    path.write_text("name,lat,lon\nA,50 42.000 N,-1.05\nB,-50.25,1.3\nC,-50.25,001 18.000 E\n",
+                    encoding="utf-8")
+    # 42.000' = 0.7°, 18.000' = 0.3° (ISO 6709 Annex D: degrees + minutes/60)
+    assert [(w.lat, w.lon) for w in read_route(path).waypoints] == [
+        (50.7, -1.05), (-50.25, 1.3), (-50.25, 1.3)]
+
+
 def test_fix_csv_unknown_method(tmp_path):
     path = tmp_path / "f.csv"
     path.write_text("time_utc,lat,lon,method\n2024-05-01T12:00:00Z,1,2,sextant\n",
