@@ -23,6 +23,7 @@ KEY_NAMES = {
     "pageup": "PgUp", "pagedown": "PgDn", "escape": "Esc", "enter": "Enter", "tab": "Tab",
     "home": "Home", "end": "End", "up": "Up", "down": "Down", "left": "Left",
     "right": "Right", "space": "Space", "backspace": "Backspace",
+    "left_square_bracket": "[", "right_square_bracket": "]",
 }
 
 #: What each view is for (the F-key table), by the view's key.
@@ -61,6 +62,8 @@ ACTION_TEXT = {
     ("FixTable", "last"): "the latest fixes (the list then follows new ones)",
     ("WatchView", "refresh_now"): "reconcile the latest fixes now",
     ("ReviewView", "recompute"): "reconcile the whole voyage again",
+    ("ReviewView", "tab(-1)"): "the tab before (tables and plots)",
+    ("ReviewView", "tab(1)"): "the tab after",
     ("CorrectionDialog", "cancel"): "cancel (nothing is written)",
     ("GoToTimeDialog", "cancel"): "cancel (nothing is written)",
     ("ChangeNoteDialog", "cancel"): "cancel (nothing is written)",

@@ -45,7 +45,8 @@ TABLES = {
     ),
     "passages": (
         ("WP", "waypoint", "int"), ("Name", "name", "str"), ("Passed UTC", "time_utc", "utc"),
-        ("How", "how", "str"), ("XTE NM", "xte_m", "xte"), ("Off NM", "distance_m", "nm2"),
+        ("How", "how", "str"), ("XTE NM", "xte_m", "xte"),
+        ("At pass NM", "distance_m", "nm2"), ("Closest NM", "closest_m", "nm2"),
         ("Planned", "planned_utc", "utc"), ("Delay", "delay_s", "dur"),
         ("Skipped", "skipped", "flag"),
     ),
@@ -183,7 +184,11 @@ def xte_painter(summary: ReviewSummary):
 class ReviewView(Vertical):
     """Tables and plots of the reconciled voyage."""
 
-    BINDINGS = [Binding("ctrl+l", "recompute", "Recompute")]
+    BINDINGS = [
+        Binding("ctrl+l", "recompute", "Recompute"),
+        Binding("left_square_bracket", "tab(-1)", "Tab"),
+        Binding("right_square_bracket", "tab(1)", "Tab"),
+    ]
     PALETTE = (
         ("Review: recompute", "recompute", "Reconcile the whole voyage again (Ctrl+L)"),
         ("Review: track plot", "show_track", "The track against the plan"),
@@ -222,6 +227,16 @@ class ReviewView(Vertical):
         # paint the view first, then load (at once when kept and current)
         self.loaded = True
         self.set_timer(0.05, self.load)
+
+    def action_tab(self, step: int) -> None:
+        """``[`` / ``]``: the tab before or after this one (round)."""
+        tabs = self.query_one("#review-tabs", TabbedContent)
+        ids = [pane.id for pane in tabs.query(TabPane)]
+        here = ids.index(tabs.active) if tabs.active in ids else 0
+        tabs.active = ids[(here + step) % len(ids)]
+        table = tabs.active_pane.query(DataTable)
+        if table:
+            table.first().focus()
 
     def action_show_track(self) -> None:
         self.query_one("#review-tabs", TabbedContent).active = "review-track"
@@ -298,11 +313,15 @@ class ReviewView(Vertical):
             self._shown_key = key
             self.computed += 1
         self._head(self._head_text(summary))
+        tabs = self.query_one("#review-tabs", TabbedContent)
         for tkey, columns in TABLES.items():
             table = self.query_one(f"#review-table-{tkey}", DataTable)
             table.clear()
             for row in summary.rows[tkey]:
                 table.add_row(*(cell(row.get(col), how) for _h, col, how in columns))
+            if tkey != "legs":  # how many, on the tab (an empty table says so at a glance)
+                tabs.get_tab(f"review-{tkey}").label = (f"{TAB_TITLES[tkey]} "
+                                                        f"{len(summary.rows[tkey])}")
         if summary.fixes:
             self.query_one("#review-track-chart", Chart).set_painter(track_painter(summary))
             self.query_one("#review-xte-chart", Chart).set_painter(xte_painter(summary))

@@ -53,7 +53,14 @@ async def test_review_shows_the_excursion_and_the_plots(session):
         assert table.row_count == 1
         row = [str(c) for c in table.get_row_at(0)]
         assert row[:2] == ["2", "starboard"] and row[5] == "2.50" and row[6] == "2.00"
-        app.query_one("#review-tabs").active = "review-xte"
+        tabs = app.query_one("#review-tabs")
+        assert str(tabs.get_tab("review-episodes").label) == "Episodes 1"
+        assert str(tabs.get_tab("review-gaps").label) == "Gaps 0"
+        assert tabs.active == "review-legs"
+        await pilot.press("right_square_bracket")  # "]": the next tab
+        assert tabs.active == "review-passages" and app.focused.id == "review-table-passages"
+        await pilot.press("left_square_bracket", "left_square_bracket")  # round to the last
+        assert tabs.active == "review-xte"
         await pilot.pause()
         chart = app.query_one("#review-xte-chart")
         text = chart.render().plain
