@@ -90,7 +90,8 @@ def feed(ctx: click.Context, udp: str | None, tcp: str | None, serial_dev: str |
         def on_usr1(_signum, _frame):
             runner.request_fix()
         previous = signal.signal(signal.SIGUSR1, on_usr1)
-    if not use_stdin and sys.stdin is not None and sys.stdin.isatty():
+    enter = not use_stdin and sys.stdin is not None and sys.stdin.isatty()
+    if enter:
         def keys() -> None:
             for _line in sys.stdin:
                 runner.request_fix()
@@ -98,7 +99,8 @@ def feed(ctx: click.Context, udp: str | None, tcp: str | None, serial_dev: str |
         threading.Thread(target=keys, name="feed-keys", daemon=True).start()
     say(f"reading {where} for voyage {target.name!r}; logging every {every_min:g} min"
         + (f" and on a course change of {course_deg:g}°" if course_deg > 0 else "")
-        + "; Enter or SIGUSR1 logs a fix now; Ctrl-C stops")
+        + ("; Enter or SIGUSR1 logs a fix now" if enter else "; SIGUSR1 logs a fix now")
+        + "; Ctrl-C stops")
     interrupted = False
     try:
         runner.run()

@@ -210,8 +210,9 @@ class ReviewView(Vertical):
         with TabbedContent(id="review-tabs"):
             for key, title in TAB_TITLES.items():
                 with TabPane(title, id=f"review-{key}"):
+                    # the first column (leg, waypoint, time) stays when scrolled sideways
                     yield Table(id=f"review-table-{key}", zebra_stripes=True,
-                                    cursor_type="row")
+                                cursor_type="row", fixed_columns=1)
             with TabPane("Track plot", id="review-track"):
                 yield Chart(id="review-track-chart")
             with TabPane("XTE plot", id="review-xte"):
