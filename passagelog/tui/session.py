@@ -52,6 +52,16 @@ class Session:
     def voyages(self) -> list[Voyage]:
         return list(self.logbook.list_voyages())
 
+    def zone_label(self) -> str:
+        """What the zone time is called for this voyage's craft: ship's time at sea,
+        local time in the air."""
+        if self.voyage is None or self.voyage.craft_id is None:
+            return "ship"
+        kind = getattr(self, "_craft_kind", None)
+        if kind is None:
+            kind = self._craft_kind = self.logbook.craft(self.voyage.craft_id).kind
+        return "local" if kind == "aircraft" else "ship"
+
     def craft_names(self) -> list[str]:
         return [c.name for c in self.logbook.list_craft()]
 
@@ -88,6 +98,7 @@ class Session:
                     names = ", ".join(v.name for v in all_v) or "none"
                     raise NotFoundError(f"voyage {voyage!r} is not in the logbook; it has: {names}")
         self.voyage = chosen
+        self._craft_kind = None
         self.reload_route()
         return chosen
 

@@ -226,7 +226,7 @@ class WatchView(VerticalScroll, can_focus=True):
         t = _t(st.time_s)
         self.query_one("#watch-head", Static).update(Text.assemble(
             "Latest fix ", (fmt.utc_time(t), "bold"),
-            f"  ship {fmt.ship_time(t, state.zd_minutes)}  ",
+            f"  {self.session.zone_label()} {fmt.ship_time(t, state.zd_minutes)}  ",
             (fmt.position(st.lat, st.lon), "bold"),
             ("  SUSPECT", "bold reverse") if st.suspect else "",
             ("\n" + fix_age(st.time_s, self.session.now().timestamp()), "dim"),

@@ -383,3 +383,15 @@ def test_times_are_rounded_to_the_minute_as_the_command_line_prints_them():
     assert fmt.utc_time(t) == "05 13:00Z"
     assert fmt.ship_time(t, 60) == "05 12:00 (+1)"
     assert fmt.utc_time(t - timedelta(seconds=20)) == "05 12:59Z"
+
+
+def test_zone_time_is_local_time_for_an_aircraft(logbook_path):
+    from passagelog.model import Craft, Voyage
+    from passagelog.store import Logbook
+    from passagelog.tui.session import Session
+
+    with Logbook.open(logbook_path) as book:
+        plane = book.add_craft(Craft("Whimbrel", kind="aircraft"))
+        book.add_voyage(Voyage("Survey flight", craft_id=plane.craft_id))
+    assert Session(logbook_path, voyage="Trial passage").zone_label() == "ship"
+    assert Session(logbook_path, voyage="Survey flight").zone_label() == "local"
