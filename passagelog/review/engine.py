@@ -953,10 +953,17 @@ def _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth,
             end = float(t[sel[-1]])
         else:
             end = None
-        run = float(np.nansum(fr.dist_prev_m[sel])) if sel.size else 0.0
+        # run: the steps onto the fixes after the passage of the leg's first waypoint (the
+        # step onto that passage ends the leg before), up to and including the step onto the
+        # passage of its last waypoint; the first leg sailed also has the step onto its first
+        # fix. So the legs share out the track without overlap, over the same span as the time
+        i_start = passed_at.get((r, kk))
+        onto = sel[1:] if sel.size and sel[0] == i_start else sel
+        run = float(np.nansum(fr.dist_prev_m[onto])) if onto.size else 0.0
         if completed:
             i_end = passed_at[(r, kk + 1)]
-            if np.isfinite(fr.dist_prev_m[i_end]):
+            if (i_end != i_start and i_end not in onto
+                    and np.isfinite(fr.dist_prev_m[i_end])):
                 run += float(fr.dist_prev_m[i_end])
         dmg = smg = None
         if sel.size >= 2:

@@ -221,10 +221,12 @@ class Episode:
 @dataclass(frozen=True)
 class LegStats:
     """Planned against actual for one leg of one revision (fixes under way, suspects left
-    out unless asked). ``run_m`` is the distance over the ground from fix to fix (including
-    the step onto the leg from the fix before), ``dmg_m``/``smg_kn`` from the first to the
-    last fix on the leg; ``time_outside_s`` sums the leg's deviation episodes; ``set`` and
-    ``drift_kn`` are the vector mean of the current found at the leg's fixes
+    out unless asked). ``run_m`` is the distance over the ground from fix to fix over the
+    leg's time: the steps onto the fixes after the passage of its first waypoint (or, on the
+    first leg sailed, from its first fix) up to and including the step onto the passage of
+    its last waypoint; so the legs' runs add up to the track. ``dmg_m``/``smg_kn`` from the
+    first to the last fix on the leg; ``time_outside_s`` sums the leg's deviation episodes;
+    ``set`` and ``drift_kn`` are the vector mean of the current found at the leg's fixes
     where heading and speed through the water were logged (``set_fixes`` of them)."""
 
     revision: int
