@@ -110,6 +110,24 @@ def _say(quiet: bool, text: str) -> None:
         click.echo(text, err=True)
 
 
+def _keep_review(db_path, voyage_id: int, quiet: bool) -> None:
+    """Reconcile the voyage and keep its review for the terminal UI (what its Review view
+    would work out when first shown). A voyage that cannot be reviewed yet (no plan, say)
+    is left alone: the import itself is done."""
+    import time
+
+    from passagelog.errors import PassagelogError
+    from passagelog.tui.review_data import reconcile_and_keep
+
+    t0 = time.perf_counter()
+    try:
+        reconcile_and_keep(str(db_path), voyage_id)
+    except PassagelogError:
+        return
+    _say(quiet, f"voyage reconciled with its plan and the review kept for the terminal UI "
+                f"({time.perf_counter() - t0:.1f} s)")
+
+
 @click.command("import")
 @click.argument("file", metavar="FILE")
 @click.option("--format", "fmt", type=click.Choice(FORMAT_CHOICES),
@@ -125,18 +143,24 @@ def _say(quiet: bool, text: str) -> None:
               help="NMEA: the UTC date of the first sentence, for logs of GGA/GLL alone.")
 @click.option("--allow-missing-checksum", is_flag=True,
               help="NMEA: accept sentences without *hh (a wrong checksum is always refused).")
+@click.option("--skip-review", is_flag=True,
+              help="Fixes: do not reconcile the voyage after the import to keep its review "
+                   "for the terminal UI (Review then works it out when first shown).")
 @click.option("-q", "--quiet", is_flag=True, help="No progress bar and no summary.")
 @click.option("--json", "as_json", is_flag=True, help="Print the import summary as JSON.")
 @click.pass_context
 def import_(ctx: click.Context, file: str, fmt: str | None, voyage: str | None,
             plan_name: str | None, thin_s: float | None, talkers: tuple[str, ...],
-            start_date: str | None, allow_missing_checksum: bool, quiet: bool,
-            as_json: bool) -> None:
+            start_date: str | None, allow_missing_checksum: bool, skip_review: bool,
+            quiet: bool, as_json: bool) -> None:
     """Import a route (RTZ, GPX, route CSV) as a plan, or fixes (NMEA 0183, GPX track,
     fix CSV) into a voyage. FILE may be - for standard input.
 
     All or nothing: a file that cannot be read adds nothing. The same file imported twice
-    adds nothing the second time. Formats and rejected lines: docs/formats.md.
+    adds nothing the second time. Formats and rejected lines: docs/formats.md. After fixes
+    are imported the voyage is reconciled with its plan and the review kept in the logbook,
+    so that the terminal UI's Review opens at once (a few seconds for a million fixes;
+    --skip-review leaves it to the UI).
     """
     from passagelog.formats import (FIX_FORMATS, ROUTE_FORMATS, FixReader, check_format,
                                     detect_format, read_routes)
@@ -186,8 +210,10 @@ def import_(ctx: click.Context, file: str, fmt: str | None, voyage: str | None,
                         f"{label} holds {len(routes)} routes; --plan names only one")
             prepared = None
             summary = None
+            voyage_id = None
             if wants_fixes:
-                book.voyage(voyage)  # an unknown voyage is named before the file is read
+                # an unknown voyage is named before the file is read
+                voyage_id = book.voyage(voyage).voyage_id
                 with _Progress(size, label, not quiet) as progress:
                     reader = FixReader(path, fmt=found, thin_s=thin_s,
                                        talkers=talkers or None,
@@ -219,6 +245,8 @@ def import_(ctx: click.Context, file: str, fmt: str | None, voyage: str | None,
     if summary is not None:
         for text in summary.report_lines():
             _say(quiet, text)
+        if not skip_review:
+            _keep_review(db_path_from(ctx), voyage_id, quiet)
     for plan in plans:
         _say(quiet, f"plan {plan['plan']!r} revision {plan['revision']}: "
                     f"{plan['waypoints']} waypoints from {label}")

@@ -235,9 +235,12 @@ def reconcile_and_keep(db_path: str, voyage_id: int) -> tuple[str, bytes]:
     from passagelog.tui.session import Session
 
     session = Session(db_path, voyage=voyage_id)
-    key = current_key(session)
-    data = encode(summarize(reconcile_session(session)))
-    keep(session, key, data)
+    try:
+        key = current_key(session)
+        data = encode(summarize(reconcile_session(session)))
+        keep(session, key, data)
+    finally:
+        session.close()
     return key, data
 
 

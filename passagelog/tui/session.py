@@ -45,6 +45,14 @@ class Session:
             self._local.logbook = lb
         return lb
 
+    def close(self) -> None:
+        """Close this thread's connection to the logbook (the last one to close folds the
+        write-ahead log back into the file)."""
+        lb = getattr(self._local, "logbook", None)
+        if lb is not None:
+            lb.close()
+            self._local.logbook = None
+
     def now(self) -> datetime:
         return self.clock()
 

@@ -259,3 +259,28 @@ def test_exit_codes_and_one_line_on_stderr(tmp_path):
     assert proc.returncode == 1 and proc.stdout == ""
     assert proc.stderr.startswith("passagelog: junk.txt: cannot tell the format")
     assert proc.stderr.count("\n") == 1
+
+
+def test_an_import_of_fixes_keeps_the_review_for_the_terminal_ui(tmp_path):
+    from passagelog.model import LegPlan, Route, Voyage, Waypoint
+    from passagelog.tui import review_data as rd
+    from passagelog.tui.session import Session
+
+    path = tmp_path / "planned.sqlite"
+    with Logbook.open(path) as book:
+        route = Route("R", (Waypoint("A", 50.0, -4.0), Waypoint("B", 49.0, -6.0)),
+                      (LegPlan("rhumb", 10.0),))
+        plan_id, _ = book.create_plan(route, "made")
+        book.add_voyage(Voyage("V1", plan_id=plan_id))
+        book.add_voyage(Voyage("V2", plan_id=plan_id))
+    nmea = _nmea(tmp_path)
+    r = run(str(path), "import", str(nmea), "--voyage", "V1")
+    assert r.exception is None and "review kept for the terminal UI" in r.stderr
+    s = Session(path, voyage="V1")
+    kept = rd.read_kept(s)
+    assert kept is not None and kept[1] == rd.current_key(s) and kept[0].fixes == 120
+    other = tmp_path / "other.nmea"
+    other.write_text(nmea.read_text() + rmc(time="140000", date="010524"), encoding="ascii")
+    r = run(str(path), "import", str(other), "--voyage", "V2", "--skip-review")
+    assert r.exception is None and "review kept" not in r.stderr
+    assert rd.read_kept(Session(path, voyage="V2")) is None
