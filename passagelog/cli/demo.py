@@ -84,7 +84,9 @@ def demo(ctx: click.Context, scenario: str, no_tui: bool, keep: str | None) -> N
 
     Three voyages are loaded: an ocean passage of great-circle and rhumb legs with clock
     changes and a deviation episode, a coastal passage with tight cross-track limits, and a
-    cross-country flight with wind. Your own logbook is not touched.
+    cross-country flight with wind. Your own logbook is not touched. The terminal UI's
+    clock starts a few minutes after the voyage's latest fix (the header says so), so the
+    Watch and the Log read as on the day.
 
     \b
     passagelog demo                     the terminal UI on the ocean passage
@@ -124,7 +126,7 @@ def demo(ctx: click.Context, scenario: str, no_tui: bool, keep: str | None) -> N
         else:
             from passagelog.tui import run_app
 
-            run_app(path, voyage=voyage)
+            run_app(path, voyage=voyage, voyage_clock=True)
     finally:
         if tmp is not None:
             shutil.rmtree(tmp, ignore_errors=True)

@@ -57,8 +57,11 @@ class PassagelogApp(App):
                  session: Session | None = None,
                  clock: Callable[[], datetime] = system_clock,
                  watch_poll_s: float = 0.5,
-                 prefetch_review_s: float | None = PREFETCH_REVIEW_S) -> None:
+                 prefetch_review_s: float | None = PREFETCH_REVIEW_S,
+                 clock_note: str = "") -> None:
         super().__init__()
+        #: said in the header when the clock is not this computer's (the demo's)
+        self.clock_note = clock_note
         self.prefetch_review_s = prefetch_review_s
         self.session = session if session is not None else Session(db_path, voyage=voyage,
                                                                     clock=clock)
@@ -113,6 +116,8 @@ class PassagelogApp(App):
         voyage = self.session.voyage
         self.sub_title = (f"{voyage.name}  {self.session.db_path.name}" if voyage
                           else f"no voyage  {self.session.db_path.name}")
+        if self.clock_note:
+            self.title = f"{self.TITLE} ({self.clock_note})"
         self.call_after_refresh(self._focus_view)
         if voyage is None:  # a new logbook: what to do first
             self.call_after_refresh(self.action_voyages)

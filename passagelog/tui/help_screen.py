@@ -54,6 +54,7 @@ ACTION_TEXT = {
     ("LogView", "record"): "log the fix in the form (on the Entries tab: add the log entry)",
     ("LogView", "goto_time"): "go to a time (UTC) in the fix list",
     ("LogView", "switch_focus"): "move between the form and the list under it",
+    ("LogView", "switch_tab"): "the Fixes tab or the Entries tab (the cursor goes to its form)",
     ("LogView", "page(-1)"): "the fix list a page up (also from the form's fields)",
     ("LogView", "page(1)"): "the fix list a page down (also from the form's fields)",
     ("FixTable", "select_cursor"):

@@ -3,11 +3,16 @@
 Each field of the fix form is checked as you type, with the reason beside it; Enter goes on
 to the next field and Ctrl+S logs the fix (or, on the Entries tab, adds the entry) when
 every field is good. The time defaults to now; a time of day alone is the latest such time
-(``14:30Z`` in UTC, ``15:30`` ship's time in the zone now in force), and a full time may
-carry its zone (``2026-05-02T11:50 ZD+1``). In the fix list suspects (implausible speed
-from the previous fix) and corrections are marked, and a corrected original stays, struck
-through. Ctrl+L moves between the form and the list; Enter on a fix opens the correction
-dialog.
+not more than :data:`AHEAD_LIMIT` ahead (``14:30Z`` in UTC, ``15:30`` ship's time in the
+zone now in force, ``15:30 ZD+1``), day and time are read as the lists show them
+(``05 14:30Z``), and a full time may carry its zone (``2026-05-02T11:50 ZD+1``); see
+:func:`read_fix_time`. A time further ahead of this computer's clock is refused; one
+before the departure or long before the latest fix is taken but warned of
+(:func:`time_check`). In the fix list suspects (implausible speed from the previous fix)
+and corrections are marked, and a corrected original stays, struck through. Ctrl+L moves
+between the form and the list; Enter on a fix opens the correction dialog; Ctrl+N switches
+between the Fixes and Entries tabs (the tab bar takes no focus, so F3 puts the cursor in
+the Time field).
 
 The fix list covers the whole voyage, every record in time order (the latest at the
 bottom), but holds only the rows on show plus a margin each side (:func:`window_rows`):
@@ -26,6 +31,7 @@ in the header grows.
 from __future__ import annotations
 
 import re
+from dataclasses import dataclass
 from datetime import datetime, timedelta, timezone
 
 from rich.text import Text
@@ -33,7 +39,9 @@ from textual import on, work
 from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Vertical
-from textual.widgets import DataTable, Input, Label, Select, Static, TabbedContent, TabPane
+from textual.widgets import (
+    DataTable, Input, Label, Select, Static, TabbedContent, TabPane, Tabs,
+)
 
 from passagelog.errors import InputError, PassagelogError
 from passagelog.model import ENTRY_KINDS, FIX_METHODS, Fix, LogEntry
@@ -41,6 +49,10 @@ from passagelog.tui import text as fmt
 from passagelog.tui.table import Table
 
 SHOWN_ENTRIES = 200
+#: The columns of the fix list. Remarks holds the marks (suspect, correction) and then the
+#: fix's remarks (the feed's reason for logging it), so that it stays on screen at 100
+#: columns.
+FIX_COLUMNS = ("#", "Time UTC", "Position", "Method", "SOG", "COG", "Remarks")
 #: Fix rows read beyond those on show, on each side (at least a page).
 MARGIN_ROWS = 20
 #: Satellites in use: the form takes what a receiver reports (NMEA GGA has two digits).
@@ -56,6 +68,9 @@ FIX_FIELDS = (
     ("remarks", "Remarks", "optional"),
 )
 FORM_FIELDS = tuple(fid for fid, _l, _p in FIX_FIELDS)
+#: the label of each field of the two forms, by the id of its input
+FIELD_LABELS = {f"fix-{fid}": label for fid, label, _p in FIX_FIELDS} | {
+    "entry-time": "Time", "entry-zd": "New ZD", "entry-text": "Text"}
 #: entry kinds that say nothing without their text
 TEXT_REQUIRED = ("event", "remark")
 
@@ -106,24 +121,171 @@ def parse_goto_time(text: str, ref: datetime | None) -> datetime:
                          f"{hour:02d}:{minute:02d}Z") from None
 
 
-def parse_fix_time(text: str, zd_minutes: int, now: datetime) -> datetime:
-    """The time of a fix typed in the form: a full date and time (no zone: ship's time in
-    zone ``zd_minutes``), or a time of day alone, ``14:30Z`` (UTC) or ``14:30`` (ship's
-    time), taken as the latest such time up to an hour after ``now``."""
-    from passagelog.nav.zonetime import parse_time_utc
+#: How far ahead of this computer's clock a typed time may be (a clock a little slow, a
+#: fix taken as the minute turns); a time further ahead is refused.
+AHEAD_LIMIT = timedelta(minutes=10)
+#: A fix this long before the latest fix is taken, but with a warning beside the field.
+LATE_WARNING = timedelta(days=2)
 
-    m = re.fullmatch(r"(\d{1,2}):?(\d{2})\s*(Z|UTC)?", text.strip(), re.IGNORECASE)
+_ZONE_SUFFIX = re.compile(r"(.*?\d)\s*(?:(Z|UTC)|ZD\s*(\S.*))?", re.IGNORECASE)
+_TIME_OF_DAY = re.compile(r"(\d{1,2}):(\d{2})(?::(\d{2}))?|(\d{1,2})(\d{2})")
+_DAY_AND_TIME = re.compile(r"\d{1,2}\s*\d{2}:?\d{2}")
+TIME_FORMS = "14:30Z, 05 14:30Z, 15:30 (ship's), 15:30 ZD+1 or 2026-05-05T14:30Z"
+
+
+@dataclass(frozen=True)
+class TypedTime:
+    """A time read from the form: when, in UTC; the zone the text was in (the ship's zone
+    for UTC and full dates, for the preview); and, for a time of day alone, which day it
+    was taken on (``today`` or ``yesterday`` in that zone)."""
+
+    utc: datetime
+    zd_minutes: int
+    day: str = ""
+
+
+def read_fix_time(text: str, zd_minutes: int, now: datetime) -> TypedTime:
+    """The time of a fix or an entry typed in the form.
+
+    - a full date and time, ``2026-05-05T14:30Z`` (no zone: ship's time in ``zd_minutes``;
+      ``... ZD+1``: ship's time in that zone);
+    - day and time as the lists show them, ``05 14:30Z`` (read as Plan reads its fixed
+      times: in this month, or in the last when this month has no such day or its time
+      would be more than a day ahead of ``now``);
+    - a time of day alone, ``14:30Z`` (UTC), ``15:30`` (ship's time in ``zd_minutes``) or
+      ``15:30 ZD+1``: the latest such time not more than :data:`AHEAD_LIMIT` ahead of
+      ``now`` (so today's, or yesterday's).
+
+    Day and time, and a time of day, without ``Z`` or ``ZD`` are ship's time.
+    """
+    from passagelog.nav.zonetime import parse_time_utc, parse_zd
+
+    t = text.strip()
+    now = now.astimezone(timezone.utc)
+    if re.match(r"\d{4}-", t):
+        try:
+            return TypedTime(parse_time_utc(t, zd_minutes), zd_minutes)
+        except InputError as exc:
+            if str(exc).startswith("cannot read time"):
+                raise InputError("cannot read this time; e.g. 2026-05-05T14:30Z or "
+                                 "2026-05-05T15:30 ZD+1") from None
+            raise
+    m = _ZONE_SUFFIX.fullmatch(t)
     if m is None:
-        return parse_time_utc(text, zd_minutes)
-    hour, minute = int(m[1]), int(m[2])
-    if hour > 23 or minute > 59:
-        raise InputError(f"time {text.strip()!r}: hours run 00-23 and minutes 00-59")
-    zd = 0 if m[3] else zd_minutes
-    local_now = now.astimezone(timezone.utc) - timedelta(minutes=zd)
-    t = local_now.replace(hour=hour, minute=minute, second=0, microsecond=0)
-    if t > local_now + timedelta(hours=1):
-        t -= timedelta(days=1)
-    return t + timedelta(minutes=zd)
+        raise InputError(f"cannot read this time; e.g. {TIME_FORMS}")
+    rest = m[1]
+    if m[2]:
+        zd = 0
+    elif m[3]:
+        try:
+            zd = parse_zd(m[3])
+        except InputError:
+            raise InputError(f"zone {m[3]!r}: e.g. ZD+1, ZD-5:30 (ZT + ZD = UTC)") from None
+    else:
+        zd = zd_minutes
+    shown_zd = zd if not m[2] else zd_minutes
+    # ship's time now in that zone, carried as a UTC datetime (only its fields are used)
+    local_now = now - timedelta(minutes=zd)
+    tod = _TIME_OF_DAY.fullmatch(rest)
+    if tod is not None:
+        hour, minute = int(tod[1] or tod[4]), int(tod[2] or tod[5])
+        second = int(tod[3] or 0)
+        if hour > 23 or minute > 59 or second > 59:
+            raise InputError(f"time {rest!r}: hours run 00-23, minutes 00-59")
+        local = local_now.replace(hour=hour, minute=minute, second=second, microsecond=0)
+        day = "today"
+        if local > local_now + AHEAD_LIMIT:
+            local -= timedelta(days=1)
+            day = "yesterday"
+        return TypedTime(local + timedelta(minutes=zd), shown_zd, day)
+    from passagelog.tui.plan_rows import parse_schedule_time
+
+    def in_month_of(ref: datetime) -> datetime:
+        try:
+            return parse_schedule_time(rest, ref, "time")
+        except InputError as exc:
+            if _DAY_AND_TIME.fullmatch(rest):
+                raise  # the shape is right: it says what is wrong
+            raise InputError(f"cannot read this time; e.g. {TIME_FORMS}") from exc
+
+    # this month's; the last month's when this month's has no such day or is more than a
+    # day ahead (``31 23:50Z`` typed just after midnight on the 1st)
+    last_month = local_now.replace(day=1) - timedelta(days=1)
+    try:
+        local = in_month_of(local_now)
+    except InputError as exc:
+        try:
+            local = in_month_of(last_month)
+        except InputError:
+            raise exc from None
+    else:
+        if local > local_now + timedelta(days=1):
+            try:
+                local = in_month_of(last_month)
+            except InputError:
+                pass  # no such day last month: this month's, refused as ahead
+    return TypedTime(local + timedelta(minutes=zd), shown_zd)
+
+
+def parse_fix_time(text: str, zd_minutes: int, now: datetime) -> datetime:
+    """The time of a fix typed in the form, in UTC (see :func:`read_fix_time`)."""
+    return read_fix_time(text, zd_minutes, now).utc
+
+
+def span_text(delta: timedelta) -> str:
+    """A span, coarse enough to read at a glance: ``26 d 14 h``, ``3 h 20 min``, ``12 min``
+    (with no-break spaces)."""
+    minutes = int(abs(delta).total_seconds() // 60)
+    days, rem = divmod(minutes, 1440)
+    hours, mins = divmod(rem, 60)
+    if days:
+        text = f"{days} d {hours} h" if hours else f"{days} d"
+    elif hours:
+        text = f"{hours} h {mins} min" if mins else f"{hours} h"
+    else:
+        text = f"{mins} min"
+    return _nb(text)
+
+
+def clock_text(t: datetime, ref: datetime | None = None, *, zd_minutes: int | None = None,
+               seconds: bool | None = None, full: bool = False) -> str:
+    """A time as the Log view writes it: UTC ``05 06:33Z`` (ship's time, given
+    ``zd_minutes``: ``05 05:33 (+1)``); the full date, ``2027-01-01 00:00Z``, when its month
+    or year is not that of ``ref`` (or ``full``); seconds (rounded) when ``seconds`` is
+    True, or when ``seconds`` is None and the time has some."""
+    t = t.astimezone(timezone.utc)
+    if t.microsecond >= 500_000:
+        t += timedelta(seconds=1)
+    t = t.replace(microsecond=0)
+    if seconds is None:
+        seconds = bool(t.second)
+    full = full or ref is not None and (t.year, t.month) != (ref.year, ref.month)
+    shown = t if zd_minutes is None else t - timedelta(minutes=zd_minutes)
+    text = shown.strftime(("%Y-%m-%d " if full else "%d ")
+                          + ("%H:%M:%S" if seconds else "%H:%M"))
+    if zd_minutes is None:
+        return text + "Z"
+    return f"{text} ({fmt.zd_text(zd_minutes)})"
+
+
+def _nb(text: str) -> str:
+    """``text`` kept on one line where a message wraps (no-break spaces)."""
+    return text.replace(" ", "\u00a0")
+
+
+def time_check(t: datetime, now: datetime, departure: datetime | None,
+               latest: datetime | None) -> tuple[str, str]:
+    """Whether a typed time is likely: ``("refuse", why)`` more than :data:`AHEAD_LIMIT`
+    ahead of ``now`` (this computer's clock); ``("warn", why)`` before the voyage's
+    ``departure`` or more than :data:`LATE_WARNING` before the ``latest`` fix (a late entry
+    of an old fix is possible, so it is taken); ``("", "")`` otherwise."""
+    if t - now > AHEAD_LIMIT:
+        return "refuse", f"{span_text(t - now)} ahead of now: 10 min at most"
+    if departure is not None and t < departure:
+        return "warn", f"before the departure ({_nb(clock_text(departure, t))})"
+    if latest is not None and latest - t > LATE_WARNING:
+        return "warn", f"{span_text(latest - t)} before the latest fix"
+    return "", ""
 
 
 def entry_zones(entries: list[LogEntry], voyage_zd: int,
@@ -195,6 +357,7 @@ class LogView(Vertical):
         Binding("ctrl+s", "record", "Record"),
         Binding("ctrl+g", "goto_time", "Go to time"),
         Binding("ctrl+l", "switch_focus", "List/form"),
+        Binding("ctrl+n", "switch_tab", "Fixes/Entries"),
         Binding("pageup", "page(-1)", "Page up", show=False),
         Binding("pagedown", "page(1)", "Page down", show=False),
     ]
@@ -206,6 +369,8 @@ class LogView(Vertical):
          "Show the fixes from a time in UTC (Ctrl+G)"),
         ("Log: to the list or the form", "switch_focus",
          "Move between the form and the list under it (Ctrl+L)"),
+        ("Log: Fixes or Entries tab", "switch_tab",
+         "Switch between the fixes and the log entries (Ctrl+N)"),
         ("Log: latest fixes", "latest", "Show the end of the fix list (End in the list)"),
         ("Log: first fixes", "first", "Show the start of the fix list (Home in the list)"),
     )
@@ -224,6 +389,15 @@ class LogView(Vertical):
         self.corrected_by: dict[int, int] = {}
         self.loaded = False
         self.valid: dict[str, bool] = {}
+        #: field id -> (message beside it, whether the value is good)
+        self.marks: dict[str, tuple[str, bool]] = {}
+        #: time field id -> why its time is doubtful (taken, but warned of)
+        self.warned: dict[str, str] = {}
+        #: whether Ctrl+S was pressed on the form since it was last cleared: a required
+        #: field left empty is an error only then
+        self.tried = {"fix": False, "entry": False}
+        #: the time of the voyage's latest fix record (None: no fix, or not read yet)
+        self.latest: datetime | None = None
         #: the ship's zone now (the voyage's, changed by the clock changes logged): times
         #: typed without a zone are taken as ship's time in it
         self.zone_now: int = session.zd_minutes
@@ -273,8 +447,11 @@ class LogView(Vertical):
                 yield Table(id="entry-table", cursor_type="row", zebra_stripes=True)
 
     def on_mount(self) -> None:
+        # the tab bar takes no focus: F3 puts the cursor in the Time field (typing starts
+        # at once), Ctrl+N switches the tabs
+        self.query_one("#log-tabs", TabbedContent).query_one(Tabs).can_focus = False
         table = self.query_one("#fix-table", DataTable)
-        for label in ("#", "Time UTC", "Position", "Method", "SOG", "COG", "Marks", "Remarks"):
+        for label in FIX_COLUMNS:
             table.add_column(label, key=label)
         entries = self.query_one("#entry-table", DataTable)
         for label in ("#", "Time UTC", "Ship", "Kind", "Text"):
@@ -352,9 +529,12 @@ class LogView(Vertical):
                 place, cursor = total - len(rows), len(rows) - 1
             corrected = s.corrections_of([f.fix_id for f in rows])
             entry_rows = s.entry_history() if entries else None
+            tail = rows[-1:] if place + len(rows) >= total else s.fix_records_before(
+                None, limit=1)
         except PassagelogError as exc:
             self.app.call_from_thread(self.notify, str(exc), severity="error")
             return
+        self.app.call_from_thread(self._set_latest, tail[0].time_utc if tail else None)
         # a fix gone to is shown at the top of the list (a logged or corrected one, mid-way)
         top = None if where in ("first", "last") else max(
             0, cursor - (page // 2 if where == "around" else 0))
@@ -408,6 +588,7 @@ class LogView(Vertical):
         latest record; else only the count in the header grows."""
         if window != self._window:
             return  # the list was read again meanwhile
+        self._set_latest(rows[-1].time_utc if rows else None)
         if not self.at_latest():
             self.total = max(total, self.first_place + len(self.rows))
             self.update_head()
@@ -428,6 +609,13 @@ class LogView(Vertical):
                 top = max(0, min(cursor, max(cursor - line, len(rows) - table.page_rows())))
         self.follows += 1
         self._show_window(rows, total - len(rows), total, corrected, cursor, top)
+
+    def _set_latest(self, latest: datetime | None) -> None:
+        """Note the time of the latest fix (the forms' checks and previews use it)."""
+        if latest != self.latest:
+            self.latest = latest
+            self.validate_fix_form()
+            self.validate_entry_form()
 
     def move_by(self, delta: int) -> None:
         """Move the cursor ``delta`` rows (negative: up; a page keeps the cursor on its line
@@ -527,11 +715,24 @@ class LogView(Vertical):
         if gone:
             marks.append(f"corrected by #{self.corrected_by[f.fix_id]}")
         style = "strike dim" if gone else ("bold" if f.suspect else "")
-        cells = [str(f.fix_id), fmt.utc_time(f.time_utc), fmt.position(f.lat, f.lon),
-                 f.method, "" if f.sog_kn is None else f"{f.sog_kn:.1f}",
-                 fmt.course(f.cog) if f.cog is not None else "", "; ".join(marks),
-                 f.remarks]
+        remarks = "; ".join(marks + ([f.remarks] if f.remarks else []))
+        cells = [str(f.fix_id),
+                 clock_text(f.time_utc, seconds=True, full=self._far_off(f.time_utc)),
+                 fmt.position(f.lat, f.lon), f.method,
+                 "" if f.sog_kn is None else f"{f.sog_kn:.1f}",
+                 fmt.course(f.cog) if f.cog is not None else "", remarks]
         return [Text(c, style=style) for c in cells]
+
+    def _far_off(self, t: datetime) -> bool:
+        """Whether the lists show a time with its full date, not just the day of the month:
+        a time before the voyage's departure (or, with no departure given, in another month
+        than the latest fix)."""
+        voyage = self.session.voyage
+        departure = voyage.departure_utc if voyage is not None else None
+        if departure is not None:
+            return t < departure
+        ref = self.latest
+        return ref is not None and (t.year, t.month) != (ref.year, ref.month)
 
     def update_head(self) -> None:
         """Say which records are on show (1-based places in time order)."""
@@ -565,8 +766,10 @@ class LogView(Vertical):
             if e.entry_id in gone:
                 text += f" [corrected by #{gone[e.entry_id]}]"
             style = "strike dim" if e.entry_id in gone else ""
-            cells = (str(e.entry_id), fmt.utc_time(e.time_utc), fmt.ship_time(e.time_utc, zd),
-                     e.kind, text)
+            far = self._far_off(e.time_utc)
+            cells = (str(e.entry_id), clock_text(e.time_utc, full=far, seconds=False),
+                     clock_text(e.time_utc, zd_minutes=zd, full=far, seconds=False), e.kind,
+                     text)
             etable.add_row(*(Text(c, style=style) for c in cells))
         if shown:
             etable.move_cursor(row=len(shown) - 1)
@@ -600,6 +803,28 @@ class LogView(Vertical):
         else:
             table, field = self.query_one("#entry-table"), self.query_one("#entry-text")
         (field if table.has_focus else table).focus()
+
+    def action_switch_tab(self) -> None:
+        """Ctrl+N: the Fixes tab or the Entries tab, with the cursor in its form."""
+        tabs = self.query_one("#log-tabs", TabbedContent)
+        tabs.active = "log-entries" if tabs.active == "log-fixes" else "log-fixes"
+        self._focus_form()
+
+    def _focus_form(self) -> None:
+        """The cursor to the first field of the tab on show, unless it is in that tab."""
+        pane = self.query_one("#log-tabs", TabbedContent).active_pane
+        focused = self.screen.focused
+        if pane is None or (focused is not None and pane in focused.ancestors):
+            return
+        (self.query_one("#fix-time") if pane.id == "log-fixes"
+         else self.query_one("#entry-kind")).focus()
+
+    @on(TabbedContent.TabActivated, "#log-tabs")
+    def _tab_shown(self, event: TabbedContent.TabActivated) -> None:
+        """A tab chosen with the mouse: the cursor goes into its form."""
+        event.stop()
+        if self.app.screen is self.screen:
+            self._focus_form()
 
     def action_latest(self) -> None:
         self.query_one("#log-tabs", TabbedContent).active = "log-fixes"
@@ -649,11 +874,57 @@ class LogView(Vertical):
     def _field(self, fid: str) -> str:
         return self.query_one(f"#fix-{fid}", Input).value
 
-    def _mark(self, fid: str, message: str, ok: bool) -> None:
+    def _mark(self, fid: str, message: str, ok: bool, *, warn: bool = False) -> None:
+        """Say ``message`` beside field ``fid``: an error unless ``ok``; a warning (the value
+        is taken) with ``warn``."""
+        self.marks[fid] = (message, ok)
         msg = self.query_one(f"#{fid}-msg", Static)
         msg.update(message)
         msg.set_class(not ok, "-bad")
+        msg.set_class(ok and warn, "-warn")
         self.query_one(f"#{fid}", Input).set_class(not ok, "-bad")
+
+    def _problem(self, form: str) -> str:
+        """The first field of ``form`` (``fix`` or ``entry``) marked wrong and why, for the
+        notice when Ctrl+S is refused."""
+        for fid, label in FIELD_LABELS.items():
+            message, ok = self.marks.get(fid, ("", True))
+            if fid.startswith(form + "-") and not ok:
+                return f"{label}: {message}"
+        return "see the fields marked beside them"
+
+    def _check_time(self, fid: str, empty: str) -> tuple[datetime | None, bool]:
+        """Read the time field ``fid`` and say beside it what it was read as: the day
+        taken, UTC and ship's time; a time too far ahead of this computer's clock is
+        refused, one before the departure or long before the latest fix is warned of.
+        Returns the time (None: empty, now) and whether it may be recorded."""
+        self.warned.pop(fid, None)
+        text = self.query_one(f"#{fid}", Input).value
+        if not text.strip():
+            self._mark(fid, empty, True)
+            return None, True
+        now = self.session.now()
+        try:
+            typed = read_fix_time(text, self.zone_now, now)
+        except PassagelogError as exc:
+            self._mark(fid, str(exc), False)
+            return None, False
+        t, ref = typed.utc, self.latest or now
+        voyage = self.session.voyage
+        level, why = time_check(t, now, voyage.departure_utc if voyage else None,
+                                self.latest)
+        if level == "refuse":
+            self._mark(fid, f"{_nb(clock_text(t, ref))}: {why}", False)
+            return None, False
+        zone_time = _nb(clock_text(t, zd_minutes=typed.zd_minutes))
+        preview = f"{_nb(clock_text(t, ref))} · {self.session.zone_label()} {zone_time}"
+        if typed.day:
+            preview = f"{typed.day}, {preview}"
+        if why:
+            self.warned[fid] = why
+            preview += f" · {why}"
+        self._mark(fid, preview, True, warn=bool(why))
+        return t, True
 
     def validate_fix_form(self) -> Fix | None:
         """Check each field, say beside it what is wrong; the fix when all are good."""
@@ -673,19 +944,16 @@ class LogView(Vertical):
             self._mark(f"fix-{fid}", ok_text(v) if v is not None else "", True)
             return v
 
-        zd = self.zone_now
-        now = self.session.now()
-        values["time"] = check(
-            "time", lambda t: parse_fix_time(t, zd, now) if t.strip() else None,
-            lambda v: f"{fmt.utc_time(v)}  ship {fmt.ship_time(v, zd)}")
-        if not self._field("time").strip():
-            self._mark("fix-time", "now, when logged", True)
+        values["time"], good = self._check_time("fix-time", "now, when logged")
         pos_text = self._field("pos")
         if pos_text.strip():
             values["pos"] = check("pos", fmt.parse_position,
                                   lambda v: fmt.position(*v))
         else:
-            self._mark("fix-pos", "required", True)  # not an error until Ctrl+S
+            # not an error until Ctrl+S is pressed (and again once the form is cleared)
+            tried = self.tried["fix"]
+            self._mark("fix-pos", "required: where the fix puts you" if tried else "required",
+                       not tried)
             good = False
         values["hdop"] = check("hdop", _hdop, lambda v: "")
         values["sats"] = check("sats", _satellites, lambda v: f"{v} in use")
@@ -717,32 +985,41 @@ class LogView(Vertical):
         if self.session.voyage is None:
             self.notify("No voyage is open.", severity="warning")
             return
+        self.tried["fix"] = True
         fix = self.validate_fix_form()
-        if not self._field("pos").strip():
-            self._mark("fix-pos", "required: where the fix puts you", False)
         if fix is None:
-            self.notify("The fix is not logged: see the fields marked beside them.",
-                        severity="warning")
+            self.notify(f"The fix is not logged. {self._problem('fix')}", severity="warning")
             return
-        self._add_fix(fix)
+        self._add_fix(fix, self.warned.get("fix-time", ""))
 
     @work(thread=True, group="log-write")
-    def _add_fix(self, fix: Fix) -> None:
+    def _add_fix(self, fix: Fix, warning: str = "") -> None:
         try:
             saved = self.session.add_fix(fix)
         except PassagelogError as exc:
             self.app.call_from_thread(self.notify, str(exc), severity="error")
             return
-        self.app.call_from_thread(self._fix_added, saved)
+        self.app.call_from_thread(self._fix_added, saved, warning)
 
-    def _fix_added(self, saved: Fix) -> None:
-        note = f"Logged fix {saved.fix_id} at {fmt.utc_time(saved.time_utc)}."
+    def _fix_added(self, saved: Fix, warning: str = "") -> None:
+        note = (f"Logged fix {saved.fix_id} at "
+                f"{clock_text(saved.time_utc, self.latest or self.session.now())}.")
+        if warning:
+            note += f" Its time is {warning}."
         if saved.suspect:
             note += f" SUSPECT: implied speed {saved.implied_speed_kn:.0f} kn."
-        self.notify(note, severity="warning" if saved.suspect else "information")
+        self.notify(note, severity="warning" if saved.suspect or warning else "information")
+        if self.latest is None or saved.time_utc > self.latest:
+            self.latest = saved.time_utc
+        self.clear_fix_form()
+        self.reload(around=saved.fix_id)
+
+    def clear_fix_form(self) -> None:
+        """Empty the fix form and its messages, as a new form (the method stays)."""
+        self.tried["fix"] = False
         for fid in FORM_FIELDS:
             self.query_one(f"#fix-{fid}", Input).value = ""
-        self.reload(around=saved.fix_id)
+        self.validate_fix_form()
 
     # --- corrections ---
     @on(DataTable.RowSelected, "#fix-table")
@@ -787,34 +1064,29 @@ class LogView(Vertical):
     def validate_entry_form(self) -> LogEntry | None:
         from passagelog.nav.zonetime import parse_zd
 
-        zd = self.zone_now
-        good = True
-        t = None
-        text_t = self.query_one("#entry-time", Input).value
-        try:
-            t = parse_fix_time(text_t, zd, self.session.now()) if text_t.strip() else None
-            self._mark("entry-time", f"{fmt.utc_time(t)}  ship {fmt.ship_time(t, zd)}" if t
-                       else "now, when added", True)
-        except PassagelogError as exc:
-            self._mark("entry-time", str(exc), False)
-            good = False
+        tried = self.tried["entry"]
+        t, good = self._check_time("entry-time", "now, when added")
         kind = self.query_one("#entry-kind", Select).value
         new_zd = None
         zd_text = self.query_one("#entry-zd", Input).value
         try:
             new_zd = parse_zd(zd_text) if zd_text.strip() else None
             if kind == "clock-change" and new_zd is None:
-                from passagelog.errors import InputError
-
-                raise InputError("a clock change needs the new zone description (e.g. +2)")
-            self._mark("entry-zd", "" if new_zd is None else f"ZD {fmt.zd_text(new_zd)}", True)
+                # shown as an error only once Ctrl+S is pressed
+                self._mark("entry-zd", "a clock change needs the new zone description "
+                           "(e.g. +2)" if tried else "required for a clock change",
+                           not tried)
+                good = False
+            else:
+                self._mark("entry-zd", "" if new_zd is None else f"ZD {fmt.zd_text(new_zd)}",
+                           True)
         except PassagelogError as exc:
             self._mark("entry-zd", str(exc), False)
             good = False
         text = self.query_one("#entry-text", Input).value.strip()
         if not text and kind in TEXT_REQUIRED:
-            self._mark("entry-text", "required: what happened", True)
-            good = False  # shown as an error only when Ctrl+S is pressed
+            self._mark("entry-text", "required: what happened", not tried)
+            good = False  # shown as an error only once Ctrl+S is pressed
         else:
             self._mark("entry-text", "", True)
         if not good:
@@ -830,13 +1102,11 @@ class LogView(Vertical):
         self.validate_entry_form()
 
     def action_add_entry(self) -> None:
+        self.tried["entry"] = True
         entry = self.validate_entry_form()
-        kind = self.query_one("#entry-kind", Select).value
-        if kind in TEXT_REQUIRED and not self.query_one("#entry-text", Input).value.strip():
-            self._mark("entry-text", "required: what happened", False)
         if entry is None:
             self.query_one("#log-tabs", TabbedContent).active = "log-entries"
-            self.notify("The entry is not added: see the fields marked beside them.",
+            self.notify(f"The entry is not added. {self._problem('entry')}",
                         severity="warning")
             return
         self._add_entry(entry)
@@ -852,9 +1122,15 @@ class LogView(Vertical):
         self.app.call_from_thread(self._entry_added)
 
     def _entry_added(self) -> None:
+        self.clear_entry_form()
+        self.reload()
+
+    def clear_entry_form(self) -> None:
+        """Empty the entry form and its messages, as a new form (the kind stays)."""
+        self.tried["entry"] = False
         for fid in ("entry-time", "entry-zd", "entry-text"):
             self.query_one(f"#{fid}", Input).value = ""
-        self.reload()
+        self.validate_entry_form()
 
 
 def _hdop(text: str) -> float | None:

@@ -59,7 +59,8 @@ async def test_log_a_fix_see_it_listed_and_correct_it(session):
         await _type(pilot, app, "#fix-pos", "49 45.0N 6 30.0W")
         await _type(pilot, app, "#fix-time", "2026-05-01T07:00 ZD+1")
         # ship's time 07:00 at ZD +1 is 08:00 UTC (ZT + ZD = UTC)
-        assert "01 08:00Z" in str(app.query_one("#fix-time-msg").render())
+        msg = str(app.query_one("#fix-time-msg").render()).replace("\u00a0", " ")
+        assert "01 08:00Z" in msg
         await _type(pilot, app, "#fix-sog", "11.5")
         await _type(pilot, app, "#fix-sats", "9")
         await pilot.press("enter")  # Enter goes on to the next field; it does not log
@@ -353,11 +354,14 @@ def test_goto_times_and_the_header():
 def test_fix_times_of_day_are_the_latest_such_time():
     now = datetime(2026, 5, 2, 0, 5, tzinfo=timezone.utc)
     utc = timezone.utc
-    # a time of day in UTC: today's, unless more than an hour ahead of now (then yesterday's)
-    assert parse_fix_time("00:30Z", 60, now) == datetime(2026, 5, 2, 0, 30, tzinfo=utc)
+    # a time of day in UTC: today's, unless more than 10 minutes ahead of now (then
+    # yesterday's)
+    assert parse_fix_time("00:15Z", 60, now) == datetime(2026, 5, 2, 0, 15, tzinfo=utc)
+    assert parse_fix_time("00:30Z", 60, now) == datetime(2026, 5, 1, 0, 30, tzinfo=utc)
     assert parse_fix_time("23:50Z", 60, now) == datetime(2026, 5, 1, 23, 50, tzinfo=utc)
     # no zone: ship's time at ZD +1 (ZT + ZD = UTC); the ship's date is still 1 May
-    assert parse_fix_time("2330", 60, now) == datetime(2026, 5, 2, 0, 30, tzinfo=utc)
+    assert parse_fix_time("2310", 60, now) == datetime(2026, 5, 2, 0, 10, tzinfo=utc)
+    assert parse_fix_time("2330", 60, now) == datetime(2026, 5, 1, 0, 30, tzinfo=utc)
     assert parse_fix_time("14:30", 60, now) == datetime(2026, 5, 1, 15, 30, tzinfo=utc)
     assert parse_fix_time("2026-05-01T10:00Z", 60, now) == datetime(2026, 5, 1, 10, 0,
                                                                     tzinfo=utc)

@@ -3,7 +3,7 @@ it; a new logbook shows the list at once; quitting asks first when the plan has 
 
 from __future__ import annotations
 
-from datetime import datetime, timezone
+from datetime import datetime, timedelta, timezone
 
 from passagelog.tui.app import OpenVoyage, PassagelogApp
 
@@ -108,3 +108,47 @@ async def test_quitting_with_plan_edits_not_saved_asks_first(session):
         assert not plan.dirty
         await pilot.press("ctrl+q")
         assert await _wait(pilot, lambda: not app.is_running)
+
+
+def test_the_demo_runs_on_a_clock_started_after_its_voyages_latest_fix(tmp_path):
+    """``passagelog demo``: the voyage is dated in 2027, so the UI's clock starts
+    DEMO_CLOCK_AFTER after the open voyage's latest fix (read from the logbook here, and
+    from the demo's own NMEA log as a cross-check) and runs on; the header says so."""
+    import time
+
+    from passagelog.cli.demo import build_demo_logbook, demo_dir
+    from passagelog.formats import iter_fixes
+    from passagelog.tui import DEMO_CLOCK_AFTER, voyage_clock_for
+
+    path = tmp_path / "demo.sqlite"
+    names = build_demo_logbook(path)
+    last_in_log = max(f.time_utc for f in iter_fixes(demo_dir() / "ocean" / "fixes.nmea"))
+    clock, note = voyage_clock_for(path, names["ocean"])
+    first = clock()
+    assert note == "demo clock"
+    assert timedelta(0) <= first - (last_in_log + DEMO_CLOCK_AFTER) < timedelta(seconds=5)
+    time.sleep(0.05)
+    assert clock() > first  # it runs on
+    app = PassagelogApp(path, voyage=names["ocean"], clock=clock, clock_note=note)
+    assert app.session.now() >= first
+    # a voyage with no fix: this computer's clock
+    from passagelog.model import Voyage
+    from passagelog.store import Logbook
+
+    with Logbook.open(path) as book:
+        book.add_voyage(Voyage("Empty"))
+    assert voyage_clock_for(path, "Empty") == (None, "")
+
+
+async def test_the_header_says_the_clock_is_the_demos(tmp_path):
+    from passagelog.cli.demo import build_demo_logbook
+    from passagelog.tui import voyage_clock_for
+
+    path = tmp_path / "demo.sqlite"
+    names = build_demo_logbook(path, scenarios=("air",))
+    clock, note = voyage_clock_for(path, names["air"])
+    app = PassagelogApp(path, voyage=names["air"], clock=clock, clock_note=note,
+                        watch_poll_s=5.0, prefetch_review_s=None)
+    async with app.run_test(size=(100, 30)) as pilot:
+        await pilot.pause()
+        assert app.title == "passagelog (demo clock)"
