@@ -328,6 +328,20 @@ class PlanView(Vertical):
             return
         self.apply_editor()
 
+    @on(Input.Submitted)
+    def _submitted(self, event: Input.Submitted) -> None:
+        """Enter in a field of the editor goes on to the next field (each is taken as it is
+        typed); in the last field of the row, or in a fixed time, back to the table."""
+        fid = event.input.id or ""
+        if not fid.startswith("plan-"):
+            return
+        event.stop()
+        if fid in ("plan-arrival", "plan-eta", "plan-etd"):
+            if self.apply_editor():
+                self.query_one("#plan-table", DataTable).focus()
+        else:
+            self.app.action_focus_next()
+
     def apply_editor(self) -> bool:
         """Read the editor into the selected row; True when every field is valid."""
         i = self._editor_row if 0 <= self._editor_row < len(self.rows) else self.selected()

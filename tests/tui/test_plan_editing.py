@@ -102,3 +102,26 @@ async def test_ins_starts_the_plan_of_a_voyage_that_has_none(tmp_path):
                 break
     assert session.route is not None and len(session.route.waypoints) == 2
     assert session.route.waypoints[1].lat == 50 + 10 / 60
+
+
+async def test_enter_in_the_editor_goes_on_to_the_next_field_and_back_to_the_table(session):
+    """As in the Log's forms, Enter goes on to the next field (each field is taken as it is
+    typed); Enter in the last field of the row puts the cursor back in the table."""
+    app = PassagelogApp(session=session, watch_poll_s=5.0, prefetch_review_s=None)
+    async with app.run_test(size=(100, 30)) as pilot:
+        plan, table = await _ready(pilot, app)
+        table.move_cursor(row=2)
+        await pilot.pause()
+        await pilot.press("enter")  # edit the row: the cursor goes to its name
+        await pilot.pause()
+        assert app.focused is app.query_one("#plan-name")
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.focused is app.query_one("#plan-pos")
+        app.query_one("#plan-arrival").focus()
+        await pilot.pause()
+        app.query_one("#plan-arrival").value = "0.3"
+        await pilot.press("enter")
+        await pilot.pause()
+        assert app.focused is table
+        assert abs(plan.rows[2].arrival_radius_m - 0.3 * 1852.0) < 1e-6
