@@ -34,6 +34,11 @@ COMMANDS: dict[str, str] = {
 }
 
 
+#: Options of ``passagelog`` itself, as they are written before a command (a command given
+#: one of them is told so).
+ROOT_OPTIONS = {"--db": ("--db PATH", " (or set PASSAGELOG_DB)"), "--debug": ("--debug", "")}
+
+
 class LazyGroup(click.Group):
     """A click group whose subcommands are imported only when used."""
 
@@ -102,6 +107,13 @@ def main(argv: list[str] | None = None) -> None:
         click.echo("interrupted", err=True)
         sys.exit(130)
     except click.ClickException as exc:
+        if isinstance(exc, click.NoSuchOption) and exc.option_name in ROOT_OPTIONS:
+            # a root option given after the command: say where it goes
+            command = exc.ctx.command_path if exc.ctx is not None else "passagelog COMMAND"
+            before, after = ROOT_OPTIONS[exc.option_name]
+            exc.message = (f"{exc.option_name} goes before the command: passagelog {before} "
+                           f"{command.partition(' ')[2] or 'COMMAND'} ...{after}")
+            exc.possibilities = None
         exc.show()
         sys.exit(exc.exit_code)
     except click.exceptions.Exit as exc:

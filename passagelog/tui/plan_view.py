@@ -331,7 +331,8 @@ class PlanView(Vertical):
     @on(Input.Submitted)
     def _submitted(self, event: Input.Submitted) -> None:
         """Enter in a field of the editor goes on to the next field (each is taken as it is
-        typed); in the last field of the row, or in a fixed time, back to the table."""
+        typed), passing over the sailing (a list Enter would open: Tab reaches it); in the
+        last field of the row, or in a fixed time, back to the table."""
         fid = event.input.id or ""
         if not fid.startswith("plan-"):
             return
@@ -339,6 +340,8 @@ class PlanView(Vertical):
         if fid in ("plan-arrival", "plan-eta", "plan-etd"):
             if self.apply_editor():
                 self.query_one("#plan-table", DataTable).focus()
+        elif fid == "plan-pos" and not self.query_one("#plan-speed", Input).disabled:
+            self.query_one("#plan-speed", Input).focus()
         else:
             self.app.action_focus_next()
 

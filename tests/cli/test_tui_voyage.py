@@ -46,3 +46,21 @@ def test_voyage_before_a_command_is_a_usage_error(logbook):
     r = _run("--db", logbook, "--voyage", "Out", "status")
     assert isinstance(r.exception, click.UsageError)
     assert "give the command its own --voyage" in str(r.exception)
+
+
+def test_db_after_a_command_is_told_where_it_goes(capsys):
+    """--db and --debug are options of passagelog itself: given after a command, the error
+    says where they go (exit 2, a usage error), not only that the command has no such
+    option."""
+    from passagelog.cli import main
+
+    with pytest.raises(SystemExit) as exit_:
+        main(["feed", "--db", "x.sqlite", "--voyage", "1"])
+    assert exit_.value.code == 2
+    err = capsys.readouterr().err
+    assert "--db goes before the command: passagelog --db PATH feed ..." in err
+    assert "PASSAGELOG_DB" in err and "Did you mean" not in err
+    with pytest.raises(SystemExit) as exit_:
+        main(["fix", "add", "--debug"])
+    assert exit_.value.code == 2
+    assert "passagelog --debug fix add ..." in capsys.readouterr().err

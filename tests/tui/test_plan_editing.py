@@ -118,6 +118,9 @@ async def test_enter_in_the_editor_goes_on_to_the_next_field_and_back_to_the_tab
         await pilot.press("enter")
         await pilot.pause()
         assert app.focused is app.query_one("#plan-pos")
+        await pilot.press("enter")  # over the sailing (Enter would open its list)
+        await pilot.pause()
+        assert app.focused is app.query_one("#plan-speed")
         app.query_one("#plan-arrival").focus()
         await pilot.pause()
         app.query_one("#plan-arrival").value = "0.3"
