@@ -186,8 +186,8 @@ class ReviewView(Vertical):
 
     BINDINGS = [
         Binding("ctrl+l", "recompute", "Recompute"),
-        Binding("left_square_bracket", "tab(-1)", "Tab"),
-        Binding("right_square_bracket", "tab(1)", "Tab"),
+        Binding("left_square_bracket", "tab(-1)", "Prev tab"),
+        Binding("right_square_bracket", "tab(1)", "Next tab"),
     ]
     PALETTE = (
         ("Review: recompute", "recompute", "Reconcile the whole voyage again (Ctrl+L)"),
