@@ -165,7 +165,9 @@ def help_text() -> str:
 
 NOTES = """\
 **Plan**: positions may be typed in any usual notation: `47°36.512'N 122°20.107'W`,
-`47 36.512N 122 20.107W`, `47.6085, -122.3351`. Esc in the editor goes back to the table.
+`47 36.512N 122 20.107W`, `47.6085, -122.3351`. In the editor each field is taken as it is
+typed; Enter goes on to the next field (passing over the sailing list, which Tab reaches)
+and from the last back to the table; Esc goes back to the table at once.
 Distances and limits are in NM, speeds in
 knots. Each row's leg settings describe the leg that **ends** at that waypoint.
 Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z` or
@@ -173,8 +175,11 @@ Fixed times (the schedule, marked `*`): an ETA or ETD in UTC, `2026-05-03T08:00Z
 waypoint, the destination, has no ETD; legs after a fixed ETD start from it; Req kn is the
 speed that makes a fixed ETA from the last fixed time.
 
-**Log**: fix times: empty for now (UTC), `2026-05-02T11:50Z`, or ship's time with its zone,
-`2026-05-02T12:50 ZD-1`. The fix list is in time order, the latest at the bottom; while the
+**Log**: fix times: empty for now; `14:30Z` (UTC) or `15:30` (ship's time), the latest such
+time; `05 14:30Z` as the lists show them; `15:30 ZD+1`; or in full, `2026-05-02T11:50Z`.
+Beside the field it says which day and time it took. A time more than 10 minutes ahead of
+now is refused; one before the departure, or long before the latest fix, is taken with a
+warning. The fix list is in time order, the latest at the bottom; while the
 latest fix is on screen the list follows new ones (from the feed or another terminal) as
 they are logged, and the cursor stays on its fix.
 
