@@ -109,7 +109,12 @@ class PassagelogApp(App):
         return widget
 
     async def on_tabbed_content_tab_activated(self, event: TabbedContent.TabActivated) -> None:
-        if event.tabbed_content.id == "views" and event.pane.id in ("log", "review"):
+        if event.tabbed_content.id != "views":
+            return
+        # notices show at the top on Plan, whose editor (where one types) is at the bottom;
+        # elsewhere at the bottom, clear of the Log's messages beside its fields
+        self.set_class(event.pane.id == "plan", "-notices-top")
+        if event.pane.id in ("log", "review"):
             await self.ensure_view(event.pane.id)
 
     def on_mount(self) -> None:
@@ -118,6 +123,7 @@ class PassagelogApp(App):
                           else f"no voyage  {self.session.db_path.name}")
         if self.clock_note:
             self.title = f"{self.TITLE} ({self.clock_note})"
+        self.set_class(True, "-notices-top")  # Plan shows first
         self.call_after_refresh(self._focus_view)
         if voyage is None:  # a new logbook: what to do first
             self.call_after_refresh(self.action_voyages)

@@ -136,3 +136,22 @@ async def test_a_view_chosen_while_the_app_starts_stays_chosen(session):
         await pilot.pause()
         assert app.query_one("#views").active == "watch"
         assert app.focused is app.query_one("#watch-view")
+
+
+async def test_notices_show_at_the_top_on_plan_and_at_the_bottom_elsewhere(session):
+    """Plan's editor, where one types, is at the bottom of the screen, so its notices show
+    at the top; the Log's messages beside its fields are at the top, so there (and on the
+    other views) notices show at the bottom."""
+    app = PassagelogApp(session=session, watch_poll_s=5.0, prefetch_review_s=None)
+    async with app.run_test(size=(80, 24), notifications=True) as pilot:
+        await pilot.pause()
+        app.notify("on Plan")
+        await pilot.pause(0.2)
+        toast = app.query("Toast").last()
+        assert app.has_class("-notices-top") and toast.region.y < 12
+        await pilot.press("f3")
+        await pilot.pause(0.2)
+        app.notify("on Log")
+        await pilot.pause(0.2)
+        assert not app.has_class("-notices-top")
+        assert app.query("Toast").last().region.y >= 12
