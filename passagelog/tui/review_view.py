@@ -300,8 +300,13 @@ class ReviewView(Vertical):
         t0 = datetime.fromtimestamp(summary.first_s, timezone.utc)
         t1 = datetime.fromtimestamp(summary.last_s, timezone.utc)
         c = summary.counts
-        return (f"{_n(summary.fixes, 'fix', 'fixes')} {fmt.utc_time(t0)} to "
-                f"{fmt.utc_time(t1)}; {_n(c['passages'], 'passage')}, "
+        first, last = fmt.utc_time(t0), fmt.utc_time(t1)
+        if first == last and summary.fixes > 1:  # fixes within a minute: with seconds
+            from passagelog.tui.log_view import clock_text
+
+            first, last = clock_text(t0, seconds=True), clock_text(t1, seconds=True)
+        return (f"{_n(summary.fixes, 'fix', 'fixes')} {first} to "
+                f"{last}; {_n(c['passages'], 'passage')}, "
                 f"{_n(c['episodes'], 'episode')} outside the limits, {_n(c['gaps'], 'gap')}, "
                 f"{_n(c['suspects'], 'suspect fix', 'suspect fixes')} left out")
 

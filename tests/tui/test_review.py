@@ -138,3 +138,20 @@ def test_summary_round_trip_and_damage_is_ignored():
     assert all(np.array_equal(back.arrays[k], np.arange(3.0)) for k in rd._ARRAYS)
     assert rd.decode(b"not an npz") is None
     assert rd.decode(rd.encode(summary)[:-10]) is None
+
+
+def test_the_head_gives_seconds_when_the_fixes_span_less_than_a_minute():
+    """Fixes a few seconds apart (a feed just started) would read '05 11:38Z to 05 11:38Z'."""
+    from passagelog.tui.review_data import ReviewSummary
+    from passagelog.tui.review_view import ReviewView
+
+    t0 = datetime(2026, 12, 5, 11, 37, 53, tzinfo=timezone.utc).timestamp()
+    counts = {"passages": 0, "episodes": 0, "gaps": 0, "suspects": 0}
+
+    def head(first_s, last_s, n=4):
+        return ReviewView._head_text(ReviewSummary(
+            fixes=n, first_s=first_s, last_s=last_s, counts=counts, rows={}, waypoints=2,
+            arrays={}))
+
+    assert head(t0, t0 + 18).startswith("4 fixes 05 11:37:53Z to 05 11:38:11Z;")
+    assert head(t0, t0 + 3600).startswith("4 fixes 05 11:38Z to 05 12:38Z;")
