@@ -36,11 +36,16 @@ def _t(ts: float | None) -> datetime | None:
     return None if ts is None else datetime.fromtimestamp(ts, timezone.utc)
 
 
+def short_span(seconds: float) -> str:
+    """``span_text``, with seconds under a minute (``18 s``, not ``0 min``)."""
+    return f"{int(round(seconds))} s" if seconds < 59.5 else span_text(seconds)
+
+
 def fix_age(fix_s: float, now_s: float) -> str:
     """How old the fix is by this computer's clock (or how far ahead of it it is dated)."""
     if fix_s > now_s + 60.0:
         return f"dated {span_text(fix_s - now_s)} ahead of this computer's clock"
-    return f"taken {span_text(max(0.0, now_s - fix_s))} ago"
+    return f"taken {short_span(max(0.0, now_s - fix_s))} ago"
 
 
 def xte_text(st) -> Text:
@@ -110,7 +115,7 @@ def figures_grid(state: WatchState) -> Table:
     # over the window, or over the part of it there are fixes for (early in the voyage)
     used = st.window_s if st.window_used_s is None else min(st.window_used_s, st.window_s)
     smg = fmt.DASH if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
-    span = span_text(used)
+    span = short_span(used)
     grid.add_row(f"SMG/CMG {span[:-7] if span.endswith(' h 00 min') else span}", f"{smg} {fmt.course(st.cmg_window)}",
                  "Set/drift", fmt.DASH if st.drift_kn is None else
                  f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")

@@ -291,6 +291,8 @@ def test_the_fix_age_says_when_a_fix_is_dated_ahead_of_the_clock():
 
     now = datetime(2026, 5, 2, 12, 0, tzinfo=timezone.utc).timestamp()
     assert fix_age(now - 45 * 60, now) == "taken 45 min ago"
+    assert fix_age(now - 18, now) == "taken 18 s ago"  # not "0 min" (a feed just logged it)
+    assert fix_age(now - 59.6, now) == "taken 1 min ago"
     assert fix_age(now - 7.5 * 3600, now) == "taken 7 h 30 min ago"
     assert fix_age(now + 3 * 86400 + 4 * 3600, now) == ("dated 3 d 04 h ahead of this "
                                                         "computer's clock")
