@@ -60,15 +60,19 @@ class Session:
     def voyages(self) -> list[Voyage]:
         return list(self.logbook.list_voyages())
 
-    def zone_label(self) -> str:
-        """What the zone time is called for this voyage's craft: ship's time at sea,
-        local time in the air."""
+    def is_aircraft(self) -> bool:
+        """Whether the voyage's craft is an aircraft."""
         if self.voyage is None or self.voyage.craft_id is None:
-            return "ship"
+            return False
         kind = getattr(self, "_craft_kind", None)
         if kind is None:
             kind = self._craft_kind = self.logbook.craft(self.voyage.craft_id).kind
-        return "local" if kind == "aircraft" else "ship"
+        return kind == "aircraft"
+
+    def zone_label(self) -> str:
+        """What the zone time is called for this voyage's craft: ship's time at sea,
+        local time in the air."""
+        return "local" if self.is_aircraft() else "ship"
 
     def craft_names(self) -> list[str]:
         return [c.name for c in self.logbook.list_craft()]

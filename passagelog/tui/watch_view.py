@@ -84,7 +84,24 @@ def _nm(distance_m: float | None) -> str:
     return text if text == fmt.DASH else f"{text} NM"
 
 
-def figures_grid(state: WatchState) -> Table:
+def current_or_wind(set_deg: float | None, drift_kn: float | None, aircraft: bool
+                    ) -> tuple[str, str]:
+    """The label and value of the DR-to-fix vector: for a ship the current, set (the
+    direction it flows toward) and drift; for an aircraft the wind found, as W/V (the
+    direction it blows from, ``set + 180``, and its speed)."""
+    if not aircraft:
+        return "Set/drift", (fmt.DASH if drift_kn is None else
+                             f"{fmt.course(set_deg)} {drift_kn:.1f} kn")
+    if drift_kn is None or not math.isfinite(drift_kn):
+        return "Wind found", fmt.DASH
+    if set_deg is None or not math.isfinite(set_deg) or round(drift_kn) == 0:
+        return "Wind found", "calm"
+    # from, in whole degrees, 360 for a wind from the north (as winds are given)
+    frm = round((set_deg + 180.0) % 360.0) or 360
+    return "Wind found", f"{frm:03d}°/{drift_kn:.0f} kn"
+
+
+def figures_grid(state: WatchState, aircraft: bool = False) -> Table:
     """Progress, ETAs, made good, set and drift, schedule: two label/value pairs a row."""
     st = state.status
     grid = Table.grid(padding=(0, 2))
@@ -117,8 +134,7 @@ def figures_grid(state: WatchState) -> Table:
     smg = fmt.DASH if st.smg_window_kn is None else f"{st.smg_window_kn:.1f} kn"
     span = short_span(used)
     grid.add_row(f"SMG/CMG {span[:-7] if span.endswith(' h 00 min') else span}", f"{smg} {fmt.course(st.cmg_window)}",
-                 "Set/drift", fmt.DASH if st.drift_kn is None else
-                 f"{fmt.course(st.set)} {st.drift_kn:.1f} kn")
+                 *current_or_wind(st.set, st.drift_kn, aircraft))
     if st.phase == "arrived":
         grid.add_row("Fixes used", f"{state.fixes_used:,} of {state.fixes_total:,}", "", "")
     else:
@@ -219,7 +235,7 @@ class WatchView(VerticalScroll, can_focus=True):
         bar.display = True
         bar.xte_m = st.xte_m if math.isfinite(st.xte_m) else None
         bar.port_m, bar.stbd_m = state.xtl_port_m, state.xtl_stbd_m
-        figures.update(figures_grid(state))
+        figures.update(figures_grid(state, self.session.is_aircraft()))
         self._draw_alerts()
 
     def _draw_head(self) -> None:

@@ -397,3 +397,17 @@ def test_zone_time_is_local_time_for_an_aircraft(logbook_path):
         book.add_voyage(Voyage("Survey flight", craft_id=plane.craft_id))
     assert Session(logbook_path, voyage="Trial passage").zone_label() == "ship"
     assert Session(logbook_path, voyage="Survey flight").zone_label() == "local"
+
+
+def test_an_aircraft_is_shown_the_wind_found_a_ship_set_and_drift():
+    """The DR-to-fix vector is the current for a ship (set: the direction it flows toward)
+    and the wind for an aircraft, given as W/V, the direction it blows from: the
+    reciprocal of the set (common practice: winds are named from where they blow, currents
+    for where they go), with 360 for a wind from the north."""
+    from passagelog.tui.watch_view import current_or_wind
+
+    assert current_or_wind(70.0, 1.84, False) == ("Set/drift", "070.0° 1.8 kn")
+    assert current_or_wind(70.0, 31.6, True) == ("Wind found", "250°/32 kn")
+    assert current_or_wind(180.2, 12.0, True) == ("Wind found", "360°/12 kn")
+    assert current_or_wind(None, 0.0, True) == ("Wind found", "calm")
+    assert current_or_wind(None, None, True) == ("Wind found", "–")
