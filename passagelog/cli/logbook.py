@@ -344,7 +344,7 @@ _fix_options = options(
     click.option("--sog", metavar="KN", help="Speed over ground, knots."),
     click.option("--cog", metavar="DEG", help="Course over ground, degrees true."),
     click.option("--heading", metavar="DEG", help="Heading, degrees true."),
-    click.option("--stw", metavar="KN", help="Speed through the water, knots."),
+    click.option("--stw", metavar="KN", help="Speed through the water (an aircraft: true airspeed), knots."),
     click.option("--hdop", metavar="N", help="Horizontal dilution of precision."),
     click.option("--satellites", metavar="N", help="Satellites used."),
     click.option("--remarks", help="Free text."),
