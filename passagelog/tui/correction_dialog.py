@@ -32,12 +32,11 @@ class CorrectionDialog(ModalScreen[tuple[Fix, str] | None]):
 
     def compose(self) -> ComposeResult:
         from passagelog.nav.zonetime import format_utc
-        from passagelog.tui.log_view import clock_text
 
         f = self.fix
         with Vertical(id="corr-box", classes="dialog"):
             # the time as the fix list shows it (with its seconds, if any)
-            yield Label(f"Correct fix {f.fix_id} of {clock_text(f.time_utc)}",
+            yield Label(f"Correct fix {f.fix_id} of {fmt.clock_text(f.time_utc)}",
                         classes="dialog-title")
             yield Static("The original stays in the record, struck through; the correction "
                          "replaces it in every figure.", id="corr-help")

@@ -47,6 +47,7 @@ from passagelog.errors import InputError, PassagelogError
 from passagelog.model import ENTRY_KINDS, FIX_METHODS, Fix, LogEntry
 from passagelog.tui import text as fmt
 from passagelog.tui.table import Table
+from passagelog.tui.text import clock_text
 
 SHOWN_ENTRIES = 200
 #: The columns of the fix list. Remarks holds the marks (suspect, correction) and then the
@@ -232,40 +233,12 @@ def parse_fix_time(text: str, zd_minutes: int, now: datetime) -> datetime:
     return read_fix_time(text, zd_minutes, now).utc
 
 
-def span_text(delta: timedelta) -> str:
-    """A span, coarse enough to read at a glance: ``26 d 14 h``, ``3 h 20 min``, ``12 min``
-    (with no-break spaces)."""
-    minutes = int(abs(delta).total_seconds() // 60)
-    days, rem = divmod(minutes, 1440)
-    hours, mins = divmod(rem, 60)
-    if days:
-        text = f"{days} d {hours} h" if hours else f"{days} d"
-    elif hours:
-        text = f"{hours} h {mins} min" if mins else f"{hours} h"
-    else:
-        text = f"{mins} min"
-    return _nb(text)
+def _span(delta: timedelta) -> str:
+    """A span as the project writes spans (``3 h 20 min``, ``243 d 12 h``), kept on one
+    line where a message wraps."""
+    from passagelog.report.display import span_text
 
-
-def clock_text(t: datetime, ref: datetime | None = None, *, zd_minutes: int | None = None,
-               seconds: bool | None = None, full: bool = False) -> str:
-    """A time as the Log view writes it: UTC ``05 06:33Z`` (ship's time, given
-    ``zd_minutes``: ``05 05:33 (+1)``); the full date, ``2027-01-01 00:00Z``, when its month
-    or year is not that of ``ref`` (or ``full``); seconds (rounded) when ``seconds`` is
-    True, or when ``seconds`` is None and the time has some."""
-    t = t.astimezone(timezone.utc)
-    if t.microsecond >= 500_000:
-        t += timedelta(seconds=1)
-    t = t.replace(microsecond=0)
-    if seconds is None:
-        seconds = bool(t.second)
-    full = full or ref is not None and (t.year, t.month) != (ref.year, ref.month)
-    shown = t if zd_minutes is None else t - timedelta(minutes=zd_minutes)
-    text = shown.strftime(("%Y-%m-%d " if full else "%d ")
-                          + ("%H:%M:%S" if seconds else "%H:%M"))
-    if zd_minutes is None:
-        return text + "Z"
-    return f"{text} ({fmt.zd_text(zd_minutes)})"
+    return _nb(span_text(delta.total_seconds()))
 
 
 def _nb(text: str) -> str:
@@ -280,11 +253,11 @@ def time_check(t: datetime, now: datetime, departure: datetime | None,
     ``departure`` or more than :data:`LATE_WARNING` before the ``latest`` fix (a late entry
     of an old fix is possible, so it is taken); ``("", "")`` otherwise."""
     if t - now > AHEAD_LIMIT:
-        return "refuse", f"{span_text(t - now)} ahead of now: 10 min at most"
+        return "refuse", f"{_span(t - now)} ahead of now: 10 min at most"
     if departure is not None and t < departure:
         return "warn", f"before the departure ({_nb(clock_text(departure, t))})"
     if latest is not None and latest - t > LATE_WARNING:
-        return "warn", f"{span_text(latest - t)} before the latest fix"
+        return "warn", f"{_span(latest - t)} before the latest fix"
     return "", ""
 
 

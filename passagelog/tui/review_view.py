@@ -302,9 +302,7 @@ class ReviewView(Vertical):
         c = summary.counts
         first, last = fmt.utc_time(t0), fmt.utc_time(t1)
         if first == last and summary.fixes > 1:  # fixes within a minute: with seconds
-            from passagelog.tui.log_view import clock_text
-
-            first, last = clock_text(t0, seconds=True), clock_text(t1, seconds=True)
+            first, last = fmt.clock_text(t0, seconds=True), fmt.clock_text(t1, seconds=True)
         return (f"{_n(summary.fixes, 'fix', 'fixes')} {first} to "
                 f"{last}; {_n(c['passages'], 'passage')}, "
                 f"{_n(c['episodes'], 'episode')} outside the limits, {_n(c['gaps'], 'gap')}, "

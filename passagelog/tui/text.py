@@ -89,3 +89,24 @@ def parse_position(text: str) -> tuple[float, float]:
     from passagelog.nav.position import parse_position as parse
 
     return parse(text)
+
+
+def clock_text(t: datetime, ref: datetime | None = None, *, zd_minutes: int | None = None,
+               seconds: bool | None = None, full: bool = False) -> str:
+    """A time as the Log view writes it: UTC ``05 06:33Z`` (ship's time, given
+    ``zd_minutes``: ``05 05:33 (+1)``); the full date, ``2027-01-01 00:00Z``, when its month
+    or year is not that of ``ref`` (or ``full``); seconds (rounded) when ``seconds`` is
+    True, or when ``seconds`` is None and the time has some."""
+    t = t.astimezone(timezone.utc)
+    if t.microsecond >= 500_000:
+        t += timedelta(seconds=1)
+    t = t.replace(microsecond=0)
+    if seconds is None:
+        seconds = bool(t.second)
+    full = full or ref is not None and (t.year, t.month) != (ref.year, ref.month)
+    shown = t if zd_minutes is None else t - timedelta(minutes=zd_minutes)
+    text = shown.strftime(("%Y-%m-%d " if full else "%d ")
+                          + ("%H:%M:%S" if seconds else "%H:%M"))
+    if zd_minutes is None:
+        return text + "Z"
+    return f"{text} ({zd_text(zd_minutes)})"
