@@ -59,7 +59,13 @@ import numpy as np
 from passagelog.errors import InputError, PassagelogError
 from passagelog.model import LogEntry, Route
 from passagelog.nav.earth import WGS84, Earth, get_earth
-from passagelog.nav.geodesic import inverse, inverse_np
+from passagelog.nav.geodesic import (
+    SPHERE_AZIMUTH_TOL_DEG,
+    SPHERE_SCREEN_MAX_M,
+    inverse,
+    inverse_np,
+    sphere_np,
+)
 from passagelog.nav.units import KN_MPS
 from passagelog.review.inputs import (
     PlanRevision,
@@ -71,8 +77,10 @@ from passagelog.review.inputs import (
 from passagelog.review.results import (
     ARRIVED,
     BEFORE_DEPARTURE,
+    DEFERRED_GROUPS,
     MIN_PROGRESS_KN,
     UNDER_WAY,
+    DeferredColumns,
     Episode,
     FixResults,
     Gap,
@@ -175,6 +183,28 @@ class _RoutePlan:
         self.wp_lat = np.array([w.lat for w in wps])
         self.wp_lon = np.array([w.lon for w in wps])
         self.names = tuple(w.name for w in wps)
+        self.e2 = earth.e2
+
+    def may_have_passed_np(self, k: int, a_sigma: np.ndarray, azi2: np.ndarray) -> np.ndarray:
+        """The cheap screen before :meth:`passed_np`: False only for fixes that surely have
+        not passed waypoint k+1, from the spherical figures of
+        :func:`~passagelog.nav.geodesic.sphere_np` (``a_sigma``, ``azi2``) and their bounds:
+        the geodesic is at least (1 - e^2) a_sigma long, and its azimuth within
+        SPHERE_AZIMUTH_TOL_DEG (the bisector test's function changes by at most 1, or 2 on
+        the bisector, per radian of azimuth)."""
+        wp = k + 1
+        if abs(self.wp_lat[wp]) > 89.0:  # azimuths near the pole: no screen
+            return np.ones(a_sigma.shape, bool)
+        low = (1.0 - self.e2) * a_sigma
+        far = (low > max(self.radius[wp], 1e-3) + 1.0) & (a_sigma < SPHERE_SCREEN_MAX_M)
+        a = np.radians(azi2)
+        tol = math.radians(SPHERE_AZIMUTH_TOL_DEG)
+        if self.perpendicular[k]:
+            ahead = np.cos(a - math.radians(self.c_in[k])) > tol
+        else:
+            ahead = (np.cos(a - math.radians(self.c_in[k]))
+                     + np.cos(a - math.radians(self.c_out[k]))) > 2.0 * tol
+        return ~(far & ahead)
 
     def passed_np(self, k: int, s: np.ndarray, azi2: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """Which fixes, at distance ``s`` and arriving azimuth ``azi2`` from waypoint k+1,
@@ -327,55 +357,103 @@ def _dr_currents(f_lat, f_lon, t, heading, stw_kn, prev, ok, earth, step_d=None,
     return set_deg, drift
 
 
-def _made_good_dep(lat, lon, t, counting, d0, earth):
-    """Made good from the departure fix (the first fix that counts) for every fix from
-    ``d0`` on: (dep_fix, cmg_dep, dmg_dep, smg_dep_kn)."""
+def _made_good_compute(lat, lon, t, counting, d0, window_s, earth, leg_to_go, route_to_go,
+                       arrived):
+    """The ``compute(idx)`` of the review's :class:`DeferredColumns`: made good from the
+    departure fix (the first fix that counts) and over the window (from the first fix that
+    counts at or after t - window, not before the departure fix), and the ETAs by that SMG,
+    for the fixes from ``d0`` on (NaN before, and where there is nothing to measure)."""
     n = t.size
-    cmg_dep = np.full(n, np.nan)
-    dmg_dep = np.full(n, np.nan)
-    smg_dep = np.full(n, np.nan)
-    cand = np.flatnonzero(counting)
-    if not cand.size:
-        return None, cmg_dep, dmg_dep, smg_dep
-    dep_fix = int(cand[0])
-    after = np.arange(max(dep_fix, d0), n)
-    d, a1, _ = inverse_np(lat[dep_fix], lon[dep_fix], lat[after], lon[after], earth)
-    el = t[after] - t[dep_fix]
-    dmg_dep[after] = d
-    cmg_dep[after] = np.where(d > 0.0, a1, np.nan)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        smg_dep[after] = np.where(el > 0, d / el / KN_MPS, np.nan)
-    return dep_fix, cmg_dep, dmg_dep, smg_dep
+    state: dict[str, np.ndarray] = {}
+
+    def compute(idx: np.ndarray | None) -> dict[str, np.ndarray]:
+        if "cand" not in state:
+            state["cand"] = np.flatnonzero(counting)
+        cand = state["cand"]
+        rows = np.arange(n) if idx is None else idx
+        m = rows.size
+        out = {name: np.full(m, np.nan) for name in DEFERRED_GROUPS[0]}
+        if not cand.size:
+            return out
+        dep_fix = int(cand[0])
+        at = np.flatnonzero(rows >= max(dep_fix, d0))
+        after = rows[at]
+        pool = None
+        if after.size >= 50000:
+            from concurrent.futures import ThreadPoolExecutor
+
+            pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="review")
+        try:
+            # from the departure fix
+            d, a1, _ = _split_inverse(pool, np.full(after.size, lat[dep_fix]),
+                                      np.full(after.size, lon[dep_fix]), lat[after],
+                                      lon[after], earth)
+            el = t[after] - t[dep_fix]
+            out["dmg_dep_m"][at] = d
+            out["cmg_dep"][at] = np.where(d > 0.0, a1, np.nan)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                out["smg_dep_kn"][at] = np.where(el > 0, d / el / KN_MPS, np.nan)
+            # over the window
+            j = np.minimum(np.searchsorted(t[cand], t[after] - window_s, side="left"),
+                           cand.size - 1)
+            w0 = cand[j]
+            ok = (w0 < after) & (t[w0] < t[after])
+            smg = np.full(after.size, np.nan)
+            if ok.any():
+                aa, ww = after[ok], w0[ok]
+                dw, _, _ = _split_inverse(pool, lat[ww], lon[ww], lat[aa], lon[aa], earth)
+                smg[ok] = dw / (t[aa] - t[ww]) / KN_MPS
+        finally:
+            if pool is not None:
+                pool.shutdown(wait=True)
+        out["smg_window_kn"][at] = smg
+        vw = np.where(smg > MIN_PROGRESS_KN, smg * KN_MPS, np.nan)
+        tt = t[after]
+        with np.errstate(divide="ignore", invalid="ignore"):
+            eta_wp = tt + np.maximum(leg_to_go[after], 0.0) / vw
+            eta_dest = tt + np.maximum(route_to_go[after], 0.0) / vw
+        done = arrived[after]
+        eta_wp[done] = np.nan
+        eta_dest[done] = np.nan
+        out["eta_wp_smg_s"][at] = eta_wp
+        out["eta_dest_smg_s"][at] = eta_dest
+        return out
+
+    return compute
 
 
-def _window_smg(lat, lon, t, counting, d0, window_s, earth, pool=None):
-    """SMG over the window, from the first fix that counts at or after t - window (and not
-    before the departure fix), for every fix from ``d0`` on."""
-    n = t.size
-    smg_win = np.full(n, np.nan)
-    cand = np.flatnonzero(counting)
-    if not cand.size:
-        return smg_win
-    after = np.arange(max(int(cand[0]), d0), n)
-    j = np.minimum(np.searchsorted(t[cand], t[after] - window_s, side="left"), cand.size - 1)
-    w0 = cand[j]
-    ok = (w0 < after) & (t[w0] < t[after])
-    if ok.any():
-        aa = after[ok]
-        ww = w0[ok]
-        if pool is None:
-            d, _, _ = inverse_np(lat[ww], lon[ww], lat[aa], lon[aa], earth)
-        else:
-            d, _, _ = _split_inverse(pool, lat[ww], lon[ww], lat[aa], lon[aa], earth)
-        smg_win[aa] = d / (t[aa] - t[ww]) / KN_MPS
-    return smg_win
+def _to_waypoint_compute(lat, lon, plans, rev_of, leg0, earth):
+    """The ``compute(idx)`` of the deferred DTW and BTW: the geodesic from each fix to the
+    end waypoint of its leg (the last waypoint once arrived)."""
+    offsets = np.cumsum([0] + [len(rp.wp_lat) for rp in plans])
+    wlat = np.concatenate([rp.wp_lat for rp in plans])
+    wlon = np.concatenate([rp.wp_lon for rp in plans])
+    rev = rev_of.copy()
+    leg = leg0.copy()
+
+    def compute(idx: np.ndarray | None) -> dict[str, np.ndarray]:
+        rows = np.arange(lat.size) if idx is None else idx
+        w = offsets[rev[rows]] + leg[rows] + 1
+        pool = None
+        if rows.size >= 50000:
+            from concurrent.futures import ThreadPoolExecutor
+
+            pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="review")
+        try:
+            s, a1, _ = _split_inverse(pool, lat[rows], lon[rows], wlat[w], wlon[w], earth)
+        finally:
+            if pool is not None:
+                pool.shutdown(wait=True)
+        return {"dtw_m": s, "btw": a1}
+
+    return compute
 
 
 def _split_inverse(pool, lat1, lon1, lat2, lon2, earth):
     """``inverse_np`` over two threads for a long batch (PROJ's C code runs without the
-    GIL): the first half in ``pool``, the second here."""
+    GIL): the first half in ``pool`` (if any), the second here."""
     n = lat2.size
-    if n < 50000:
+    if pool is None or n < 50000:
         return inverse_np(lat1, lon1, lat2, lon2, earth)
     h = n // 2
     first = pool.submit(inverse_np, lat1[:h], lon1[:h], lat2[:h], lon2[:h], earth)
@@ -576,18 +654,16 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         phase[t < dep_s] = BEFORE_DEPARTURE
     if arr_given is not None:
         phase[t > arr_given] = ARRIVED
-    # made good from the departure: in the second thread (the window SMG comes after the
-    # offsets, in this one)
+    # made good from the departure fix (the first good fix not before departure) and over
+    # the window: worked out when read (DeferredColumns)
     counting_made_good = good & (phase != BEFORE_DEPARTURE)
-    made_good = pool.submit(_made_good_dep, lat, lon, t, counting_made_good, d0, earth)
+    dep_fix = int(np.argmax(counting_made_good)) if counting_made_good.any() else None
 
     # ---------------------------------------------------------------- state machine
     rev_starts = np.array([r.from_s for r in revisions])
     rev_of = np.searchsorted(rev_starts, t, side="right") - 1
     rev_of[rev_of < 0] = 0
     leg0 = np.zeros(n, np.int64)  # 0-based leg
-    dtw = np.full(n, np.nan)
-    btw = np.full(n, np.nan)
     passage_raw: list[tuple[int, int, int, str, float]] = []  # (rev, k, fix, how, dist)
     can_pass = good & (phase == UNDER_WAY)
     arrived_at: int | None = None
@@ -614,17 +690,25 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         chunk = CHUNK_START
         while i < b:
             m = min(b, i + chunk)
-            s, a1, a2 = inverse_np(lat[i:m], lon[i:m], rp.wp_lat[k + 1], rp.wp_lon[k + 1],
-                                   earth)
-            passed, circle = rp.passed_np(k, s, a2)
-            passed &= can_pass[i:m]
-            if passed.any():
-                j = int(np.argmax(passed))
+            w_lat, w_lon = rp.wp_lat[k + 1], rp.wp_lon[k + 1]
+            # the exact test only where the spherical screen cannot rule a passage out
+            a_sig, a2s = sphere_np(lat[i:m], lon[i:m], w_lat, w_lon, earth)
+            maybe = np.flatnonzero(can_pass[i:m] & rp.may_have_passed_np(k, a_sig, a2s))
+            j = None
+            c0, batch = 0, CHUNK_MIN  # in order, a few at a time: the first usually passes
+            while j is None and c0 < maybe.size:
+                cand = maybe[c0:c0 + batch]
+                s, _, a2 = inverse_np(lat[i + cand], lon[i + cand], w_lat, w_lon, earth)
+                passed, circle = rp.passed_np(k, s, a2)
+                if passed.any():
+                    q = int(np.argmax(passed))
+                    j = int(cand[q])
+                    how = "arrival-circle" if circle[q] else "bisector"
+                    passage_raw.append((r, k, i + j, how, float(s[q])))
+                c0 += batch
+                batch *= 4
+            if j is not None:
                 leg0[i:i + j] = k
-                dtw[i:i + j] = s[:j]
-                btw[i:i + j] = a1[:j]
-                how = "arrival-circle" if circle[j] else "bisector"
-                passage_raw.append((r, k, i + j, how, float(s[j])))
                 k += 1
                 i += j
                 last_wp = (r, k)
@@ -634,13 +718,11 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
                     break
             else:
                 leg0[i:m] = k
-                dtw[i:m] = s
-                btw[i:m] = a1
                 span = m - i
                 i = m
-                rate = (s[0] - s[-1]) / (span - 1) if span > 1 else 0.0
+                rate = (a_sig[0] - a_sig[-1]) / (span - 1) if span > 1 else 0.0
                 if rate > 0.0:
-                    chunk = int(min(CHUNK_MAX, max(CHUNK_MIN, 1.1 * s[-1] / rate + 32)))
+                    chunk = int(min(CHUNK_MAX, max(CHUNK_MIN, 1.1 * a_sig[-1] / rate + 32)))
                 else:
                     chunk = min(CHUNK_MAX, chunk * 2)
         if arrived_at is not None:
@@ -650,11 +732,6 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         rev_of[arrived_at:] = r_arr
         leg0[arrived_at:] = plans[r_arr].n_legs - 1
         phase[arrived_at:] = ARRIVED
-        rp = plans[r_arr]
-        s, a1, _ = inverse_np(lat[arrived_at:], lon[arrived_at:], rp.wp_lat[-1], rp.wp_lon[-1],
-                              earth)
-        dtw[arrived_at:] = s
-        btw[arrived_at:] = a1
         arr_s = float(t[arrived_at])
         if arr_given is not None:
             arr_s = min(arr_s, arr_given)
@@ -689,7 +766,6 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         found = ~np.isfinite(xte) & ~no_foot
         found[:d0] = False
         if found.any():
-            made_good.cancel()
             raise _NoFoot(np.flatnonzero(found))
     length = np.zeros(n)
     cum_start = np.zeros(n)
@@ -736,20 +812,14 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         cmg_prev[ii] = np.where(d > 0.0, a1, np.nan)
         with np.errstate(divide="ignore", invalid="ignore"):
             smg_prev[ii] = np.where(dtp > 0, d / dtp / KN_MPS, np.nan)
-    smg_win = _window_smg(lat, lon, t, counting_made_good, d0, window_s, earth, pool)
-    dep_fix, cmg_dep, dmg_dep, smg_dep = made_good.result()
-    # ETAs
+    # ETAs by plan (those by SMG are deferred)
     v = speed * KN_MPS
     tg = np.maximum(leg_to_go, 0.0)
     with np.errstate(divide="ignore", invalid="ignore"):
         eta_wp_plan = t + tg / v
         eta_dest_plan = eta_wp_plan + time_after
-        w_ok = smg_win > MIN_PROGRESS_KN
-        vw = np.where(w_ok, smg_win * KN_MPS, np.nan)
-        eta_wp_smg = t + tg / vw
-        eta_dest_smg = t + np.maximum(route_to_go, 0.0) / vw
     arrived_mask = phase == ARRIVED
-    for arr in (eta_wp_plan, eta_dest_plan, eta_wp_smg, eta_dest_smg):
+    for arr in (eta_wp_plan, eta_dest_plan):
         arr[arrived_mask] = np.nan
     # delay against the schedule at the same distance along the route
     delay = np.full(n, np.nan)
@@ -783,12 +853,14 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         suspect=ro(suspect), phase=ro(phase), revision=ro(rev_of.astype(np.int16)),
         leg=ro((leg0 + 1).astype(np.int16)), xte_m=ro(xte), along_m=ro(along),
         leg_to_go_m=ro(leg_to_go), route_to_go_m=ro(route_to_go), xtl_m=ro(xtl),
-        inside_xtl=ro(inside), dtw_m=ro(dtw), btw=ro(btw), cmg_prev=ro(cmg_prev),
-        smg_prev_kn=ro(smg_prev), dist_prev_m=ro(dist_prev), cmg_dep=ro(cmg_dep),
-        dmg_dep_m=ro(dmg_dep), smg_dep_kn=ro(smg_dep), smg_window_kn=ro(smg_win),
-        eta_wp_plan_s=ro(eta_wp_plan), eta_dest_plan_s=ro(eta_dest_plan),
-        eta_wp_smg_s=ro(eta_wp_smg), eta_dest_smg_s=ro(eta_dest_smg), delay_s=ro(delay),
+        inside_xtl=ro(inside), cmg_prev=ro(cmg_prev),
+        smg_prev_kn=ro(smg_prev), dist_prev_m=ro(dist_prev),
+        eta_wp_plan_s=ro(eta_wp_plan), eta_dest_plan_s=ro(eta_dest_plan), delay_s=ro(delay),
         set=ro(set_deg), drift_kn=ro(drift),
+        deferred=DeferredColumns([
+            _made_good_compute(lat, lon, t, ro(counting_made_good), d0, window_s, earth,
+                               ro(leg_to_go), ro(route_to_go), ro(arrived_mask)),
+            _to_waypoint_compute(lat, lon, plans, rev_of, leg0, earth)]),
     )
 
     # ---------------------------------------------------------------- passages
@@ -866,7 +938,7 @@ def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
     lo = max(since, 0)
     sel = np.flatnonzero(can_pass[lo:i]) + lo
     if sel.size:
-        best = min(best, float(np.nanmin(fr.dtw_m[sel])))
+        best = min(best, _least_distance(fr.lat[sel], fr.lon[sel], w_lat, w_lon, earth))
         j = int(sel[-1])
         try:
             from passagelog.nav.legs import make_leg
@@ -879,6 +951,18 @@ def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
         if 0.0 <= a <= seg.distance_m:
             best = min(best, abs(float(x)))
     return best
+
+
+def _least_distance(lat, lon, w_lat: float, w_lon: float, earth: Earth) -> float:
+    """The least geodesic distance from the positions to a point, solving the inverse
+    problem only where the spherical screen's lower bound, (1 - e^2) a sigma, does not
+    already exceed the distance of the nearest on the sphere."""
+    a_sig, _ = sphere_np(lat, lon, w_lat, w_lon, earth)
+    first = int(np.argmin(a_sig))
+    d0, _, _ = inverse(float(lat[first]), float(lon[first]), w_lat, w_lon, earth)
+    maybe = np.flatnonzero((1.0 - earth.e2) * a_sig <= d0)
+    d, _, _ = inverse_np(lat[maybe], lon[maybe], w_lat, w_lon, earth)
+    return min(d0, float(d.min())) if d.size else d0
 
 
 def _runs(mask: np.ndarray) -> list[tuple[int, int]]:

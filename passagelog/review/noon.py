@@ -94,7 +94,7 @@ def noon_figures(fr: FixResults, plans, clocks: Clocks, good: np.ndarray,
         el = tn - prev_t
         v = rp.speed_kn[k] * KN_MPS
         eta_plan = tn + max(leg_to_go, 0.0) / v + rp.time_after[k] if v > 0 else math.nan
-        smg_w = float(fr.smg_window_kn[ia])
+        smg_w = fr.value("smg_window_kn", ia)
         eta_smg = (tn + max(rtg, 0.0) / (smg_w * KN_MPS)
                    if math.isfinite(smg_w) and smg_w > MIN_PROGRESS_KN else math.nan)
         zt = datetime.fromtimestamp(tn - 60.0 * z, tz=timezone.utc)

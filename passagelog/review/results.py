@@ -12,8 +12,9 @@ into ``Review.routes``.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, fields
-from typing import Any, Iterator
+import threading
+from dataclasses import dataclass, field, fields
+from typing import Any, Callable, Iterator, Sequence
 
 import numpy as np
 
@@ -90,6 +91,52 @@ def zone_text(zd_minutes: int) -> str:
     return f"{sign}{h}" if m == 0 else f"{sign}{h}:{m:02d}"
 
 
+#: Per-fix columns worked out only when first read (:class:`DeferredColumns`), by group:
+#: made good from the departure and over the window with the ETAs by that SMG; distance
+#: and bearing to the active leg's end waypoint.
+DEFERRED_GROUPS = (
+    ("cmg_dep", "dmg_dep_m", "smg_dep_kn", "smg_window_kn", "eta_wp_smg_s", "eta_dest_smg_s"),
+    ("dtw_m", "btw"),
+)
+DEFERRED = tuple(name for group in DEFERRED_GROUPS for name in group)
+
+
+class DeferredColumns:
+    """Per-fix columns that cost an ellipsoidal inverse problem per fix and that most
+    readers want at a few fixes only: worked out when first asked for, whole
+    (:meth:`column`, then kept) or at some fixes (:meth:`at`). ``computes`` holds, for each
+    group of :data:`DEFERRED_GROUPS`, a ``compute(idx)`` that gives every column of the
+    group at the rows ``idx`` (all rows for None)."""
+
+    def __init__(self, computes: Sequence[Callable[[np.ndarray | None],
+                                                   dict[str, np.ndarray]]]):
+        self._group = {name: g for g, names in enumerate(DEFERRED_GROUPS) for name in names}
+        self._computes = list(computes)
+        self._cols: dict[str, np.ndarray] = {}
+        self._lock = threading.Lock()
+
+    def column(self, name: str) -> np.ndarray:
+        with self._lock:
+            if name not in self._cols:
+                cols = self._computes[self._group[name]](None)
+                for a in cols.values():
+                    a.setflags(write=False)
+                self._cols.update(cols)
+        return self._cols[name]
+
+    def at(self, name: str, idx) -> np.ndarray:
+        idx = np.atleast_1d(np.asarray(idx, dtype=np.int64))
+        whole = self._cols.get(name)
+        if whole is not None:
+            return whole[idx]
+        return self._computes[self._group[name]](idx)[name]
+
+
+def _deferred(name: str) -> property:
+    return property(lambda self: self.deferred.column(name),
+                    doc=f"``{name}`` (worked out on first read: :class:`DeferredColumns`)")
+
+
 @dataclass(frozen=True, eq=False)
 class FixResults:
     """One row per valid fix in time order, as read-only numpy columns.
@@ -126,25 +173,33 @@ class FixResults:
     route_to_go_m: np.ndarray
     xtl_m: np.ndarray
     inside_xtl: np.ndarray
-    dtw_m: np.ndarray
-    btw: np.ndarray
     cmg_prev: np.ndarray
     smg_prev_kn: np.ndarray
     dist_prev_m: np.ndarray
-    cmg_dep: np.ndarray
-    dmg_dep_m: np.ndarray
-    smg_dep_kn: np.ndarray
-    smg_window_kn: np.ndarray
     eta_wp_plan_s: np.ndarray
     eta_dest_plan_s: np.ndarray
-    eta_wp_smg_s: np.ndarray
-    eta_dest_smg_s: np.ndarray
     delay_s: np.ndarray
     set: np.ndarray
     drift_kn: np.ndarray
+    deferred: DeferredColumns = field(repr=False)
+
+    cmg_dep = _deferred("cmg_dep")
+    dmg_dep_m = _deferred("dmg_dep_m")
+    smg_dep_kn = _deferred("smg_dep_kn")
+    smg_window_kn = _deferred("smg_window_kn")
+    eta_wp_smg_s = _deferred("eta_wp_smg_s")
+    eta_dest_smg_s = _deferred("eta_dest_smg_s")
+    dtw_m = _deferred("dtw_m")
+    btw = _deferred("btw")
 
     def __len__(self) -> int:
         return int(self.time_s.size)
+
+    def value(self, name: str, i: int) -> float:
+        """Column ``name`` at row ``i``, without working out a whole deferred column."""
+        if name in DEFERRED:
+            return float(self.deferred.at(name, range(len(self))[i])[0])
+        return float(getattr(self, name)[i])
 
 
 @dataclass(frozen=True)

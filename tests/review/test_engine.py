@@ -379,3 +379,23 @@ def test_a_zero_length_leg_is_refused_with_its_name():
     route = Route("harbour", (Waypoint("A", 1.0, 1.0), Waypoint("B", 1.0, 1.0)))
     with pytest.raises(GeometryError, match=r"route 'harbour' leg 1 \(A -> B\)"):
         reconcile(route, syn.columns([syn.T0], [1.0], [1.0]))
+
+
+def test_deferred_columns_at_some_fixes_are_those_of_the_whole_column(voyage):
+    """Made good from departure and over the window, the ETAs by SMG, and DTW/BTW are
+    worked out when read: at a few rows (what the noon table and the watch status read) they are the
+    values of the whole column (an internal consistency check; test_voyage.py checks the
+    figures themselves against closed forms)."""
+    from passagelog.review.results import DEFERRED
+
+    route, legs, L, plan, cols, rv = voyage
+    fresh = reconcile(route, cols, window_s=1800.0)
+    rows = [0, 1, len(plan) // 2, len(plan) - 1]
+    picked = {name: fresh.fixes.deferred.at(name, rows) for name in DEFERRED}
+    assert not fresh.fixes.deferred._cols  # nothing whole worked out yet
+    for name in DEFERRED:
+        whole = getattr(fresh.fixes, name)
+        assert not whole.flags.writeable
+        np.testing.assert_array_equal(picked[name], whole[rows], err_msg=name)
+        assert fresh.fixes.value(name, -1) == pytest.approx(whole[-1], nan_ok=True)
+    assert np.isfinite(fresh.fixes.smg_window_kn[1:]).all()
