@@ -369,6 +369,7 @@ def _made_good_compute(lat, lon, t, counting, d0, window_s, earth, leg_to_go, ro
     def compute(idx: np.ndarray | None) -> dict[str, np.ndarray]:
         if "cand" not in state:
             state["cand"] = np.flatnonzero(counting)
+            state["t_cand"] = t[state["cand"]]
         cand = state["cand"]
         rows = np.arange(n) if idx is None else idx
         m = rows.size
@@ -394,7 +395,7 @@ def _made_good_compute(lat, lon, t, counting, d0, window_s, earth, leg_to_go, ro
             with np.errstate(divide="ignore", invalid="ignore"):
                 out["smg_dep_kn"][at] = np.where(el > 0, d / el / KN_MPS, np.nan)
             # over the window
-            j = np.minimum(np.searchsorted(t[cand], t[after] - window_s, side="left"),
+            j = np.minimum(np.searchsorted(state["t_cand"], t[after] - window_s, side="left"),
                            cand.size - 1)
             w0 = cand[j]
             ok = (w0 < after) & (t[w0] < t[after])
@@ -664,6 +665,10 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
     rev_of = np.searchsorted(rev_starts, t, side="right") - 1
     rev_of[rev_of < 0] = 0
     leg0 = np.zeros(n, np.int64)  # 0-based leg
+    # the spherical screen's a*sigma from each fix to the waypoint it was screened against
+    # ((revision, waypoint) in screened_for), kept for the closest approach at the passage
+    screened = np.full(n, np.nan)
+    screened_for = np.full(n, -1, np.int64)
     passage_raw: list[tuple[int, int, int, str, float]] = []  # (rev, k, fix, how, dist)
     can_pass = good & (phase == UNDER_WAY)
     arrived_at: int | None = None
@@ -707,6 +712,9 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
                     passage_raw.append((r, k, i + j, how, float(s[q])))
                 c0 += batch
                 batch *= 4
+            last = m if j is None else i + j
+            screened[i:last] = a_sig[:last - i]
+            screened_for[i:last] = r * 100000 + k + 1
             if j is not None:
                 leg0[i:i + j] = k
                 k += 1
@@ -872,7 +880,7 @@ def _reconcile_rest(*, plans, revisions, clocks, entries, earth, raw, valid, ord
         wp = kk + 1
         planned = float(scheds[r][wp]) if np.isfinite(scheds[r][wp]) else None
         closest = _closest_approach(fr, can_pass, prev_pass, i, rp.wp_lat[wp], rp.wp_lon[wp],
-                                    dist, earth)
+                                    dist, earth, screened, screened_for == r * 100000 + wp)
         passages.append(Passage(
             revision=r, waypoint=wp + 1, name=rp.names[wp], time_s=float(t[i]), how=how,
             xte_m=float(x_in), distance_m=dist, closest_m=closest, lat=float(lat[i]),
@@ -930,7 +938,8 @@ def _enter_revision(old: _RoutePlan, wp_index: int, new: _RoutePlan, earth: Eart
 
 
 def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
-                      w_lat: float, w_lon: float, dist: float, earth: Earth) -> float:
+                      w_lat: float, w_lon: float, dist: float, earth: Earth,
+                      screened: np.ndarray, screened_here: np.ndarray) -> float:
     """Closest approach of the track to a waypoint passed at fix ``i``: the least distance
     of the fixes since the previous passage (fix ``since``) and of the geodesic from the last
     fix before ``i`` to fix ``i`` (the track between two fixes taken as a geodesic)."""
@@ -938,7 +947,8 @@ def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
     lo = max(since, 0)
     sel = np.flatnonzero(can_pass[lo:i]) + lo
     if sel.size:
-        best = min(best, _least_distance(fr.lat[sel], fr.lon[sel], w_lat, w_lon, earth))
+        a_sig = np.where(screened_here[sel], screened[sel], np.nan)
+        best = min(best, _least_distance(fr.lat[sel], fr.lon[sel], w_lat, w_lon, earth, a_sig))
         j = int(sel[-1])
         try:
             from passagelog.nav.legs import make_leg
@@ -953,11 +963,18 @@ def _closest_approach(fr: FixResults, can_pass: np.ndarray, since: int, i: int,
     return best
 
 
-def _least_distance(lat, lon, w_lat: float, w_lon: float, earth: Earth) -> float:
+def _least_distance(lat, lon, w_lat: float, w_lon: float, earth: Earth,
+                    a_sig: np.ndarray | None = None) -> float:
     """The least geodesic distance from the positions to a point, solving the inverse
     problem only where the spherical screen's lower bound, (1 - e^2) a sigma, does not
-    already exceed the distance of the nearest on the sphere."""
-    a_sig, _ = sphere_np(lat, lon, w_lat, w_lon, earth)
+    already exceed the distance of the nearest on the sphere. ``a_sig``: the screen's
+    figures where already known (NaN where not)."""
+    if a_sig is None:
+        a_sig = np.full(lat.shape, np.nan)
+    todo = np.isnan(a_sig)
+    if todo.any():
+        a_sig = a_sig.copy()
+        a_sig[todo], _ = sphere_np(lat[todo], lon[todo], w_lat, w_lon, earth)
     first = int(np.argmin(a_sig))
     d0, _, _ = inverse(float(lat[first]), float(lon[first]), w_lat, w_lon, earth)
     maybe = np.flatnonzero((1.0 - earth.e2) * a_sig <= d0)
@@ -1011,12 +1028,19 @@ def _leg_stats(fr, plans, passage_raw, can_count, episodes, dep_s, gap_s, earth,
     t = fr.time_s
     # passage times per (rev, waypoint index)
     passed_at = {(r, kk + 1): int(i) for r, kk, i, _, _ in passage_raw}
-    used = sorted(set(zip(fr.revision[can_count].tolist(), (fr.leg[can_count] - 1).tolist()))
+    # the fixes that count, grouped by (revision, leg), each group in time order
+    rows = np.flatnonzero(can_count)
+    key = fr.revision[rows].astype(np.int64) * 100000 + (fr.leg[rows] - 1)
+    by_key = rows[np.argsort(key, kind="stable")]
+    keys, first = np.unique(np.sort(key), return_index=True)
+    bounds = dict(zip(keys.tolist(), zip(first.tolist(), first[1:].tolist() + [rows.size])))
+    used = sorted({divmod(x, 100000) for x in keys.tolist()}
                   | {(r, kk) for r, kk, _, _, _ in passage_raw})
     out = []
     for r, kk in used:
         rp = plans[r]
-        sel = np.flatnonzero(can_count & (fr.revision == r) & (fr.leg == kk + 1))
+        lo, hi = bounds.get(r * 100000 + kk, (0, 0))
+        sel = by_key[lo:hi]
         plan = rp.route.legs[kk]
         # start: passage of the leg's first waypoint; else, on the first leg sailed under a
         # revision, the departure (first revision) or the revision's start; else its first fix
