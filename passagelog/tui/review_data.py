@@ -109,19 +109,20 @@ def summarize(review) -> ReviewSummary:
     flat, flon = _thin(np.asarray(fr.lat), unwrap(fr.lon))
     t = np.asarray(fr.time_s, dtype=float)
     xte = np.asarray(fr.xte_m, dtype=float) / NM_M
-    port = np.full(t.shape, np.nan)
-    stbd = np.full(t.shape, np.nan)
-    rev = np.asarray(fr.revision)
-    legno = np.asarray(fr.leg)
+    # each fix's limits, looked up by (revision, leg) in a table of every route's legs
+    width = max(len(rroute.legs) for rroute in review.routes) + 1
+    port_of = np.full((len(review.routes), width), np.nan)
+    stbd_of = np.full((len(review.routes), width), np.nan)
     for r, rroute in enumerate(review.routes):
         for k, leg in enumerate(rroute.legs):
-            if leg.xtl_port_m is None and leg.xtl_stbd_m is None:
-                continue
-            sel = (rev == r) & (legno == k + 1)
             if leg.xtl_port_m is not None:
-                port[sel] = -leg.xtl_port_m / NM_M
+                port_of[r, k + 1] = -leg.xtl_port_m / NM_M
             if leg.xtl_stbd_m is not None:
-                stbd[sel] = leg.xtl_stbd_m / NM_M
+                stbd_of[r, k + 1] = leg.xtl_stbd_m / NM_M
+    rev = np.asarray(fr.revision, dtype=np.int64)
+    legno = np.asarray(fr.leg, dtype=np.int64)
+    port = port_of[rev, legno]
+    stbd = stbd_of[rev, legno]
     xt, xx, xp, xs = _envelope(t, xte, port, stbd)
     n = len(t)
     return ReviewSummary(
