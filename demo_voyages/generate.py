@@ -146,15 +146,17 @@ def build(sc: Scenario, out: Path) -> dict:
             course = _course_at(leg, s)
             if abs(xte) > 0:
                 lat, lon, _ = direct(lat, lon, course + (90.0 if xte > 0 else -90.0), abs(xte))
-            if sc.wind:  # an aircraft's ground speed follows from the wind triangle
-                v = wind_triangle(course, sc.wind["tas_kn"], sc.wind["from"],
-                                  sc.wind["kn"]).ground_speed_kn
+            heading = None
+            if sc.wind:  # an aircraft's heading and ground speed follow from the wind triangle
+                tri = wind_triangle(course, sc.wind["tas_kn"], sc.wind["from"], sc.wind["kn"])
+                v = tri.ground_speed_kn
+                heading = round(tri.true_heading % 360.0, 1) % 360.0
             else:
                 v = speed_kn * (1 + sc.speed_wobble * math.sin(s_nm / 17.0 + wobble_phase))
             # 1e-9 degree is 0.1 mm: the files do not change with the last bits of the math
             fixes.append(Fix(time_utc=t, lat=round(lat, 9), lon=round(lon, 9), method="gnss",
                              sog_kn=round(v, 1),
-                             cog=round(course % 360.0, 1) % 360.0,
+                             cog=round(course % 360.0, 1) % 360.0, heading=heading,
                              hdop=round(float(rng.uniform(0.6, 1.4)), 1),
                              satellites=int(rng.integers(7, 13)), fix_mode="A"))
             truth.append({"time_utc": format_utc(t), "leg": k + 1, "along_m": s, "xte_m": xte,
@@ -212,8 +214,10 @@ def _spoil(path: Path) -> None:
     """Put three faults of the kind seen in real logs into the NMEA file: a bad checksum,
     a sentence cut short, and a receiver reporting no fix (status V)."""
     lines = path.read_text(encoding="ascii").splitlines(keepends=True)
-    n = len(lines)
-    i, j, k = n // 5, n // 2, (4 * n) // 5
+    # the faults fall on position sentences (RMC), not on the headings that follow them
+    rmc = [x for x, line in enumerate(lines) if line[3:6] == "RMC"]
+    n = len(rmc)
+    i, j, k = rmc[n // 5], rmc[n // 2], rmc[(4 * n) // 5]
     body, _, cs = lines[i].rstrip("\r\n").rpartition("*")
     lines[i] = f"{body}*{(int(cs, 16) ^ 0x5A):02X}\r\n"
     lines[j] = lines[j][: len(lines[j]) // 2] + "\r\n"

@@ -107,3 +107,30 @@ def test_demo_command_prints_the_review(tmp_path):
                                       "--scenario", "air"])
     assert result.exit_code == 0, result.output
     assert keep.is_file()
+
+
+def test_demo_air_voyage_finds_the_wind_it_was_flown_in(tmp_path):
+    """The air demo logs each fix's true heading (HDT, from the wind triangle solved by
+    construction) and its TAS: the current found from heading and TAS is then the wind, from
+    250 deg at 24 kn by construction (voyage.json), to within the track's wander (each leg's
+    vector mean: set 070 +- 6 deg, drift 24 +- 2.5 kn, a tolerance of our own)."""
+    from passagelog.cli.demo import build_demo_logbook
+    from passagelog.store import Logbook
+    from passagelog.tui.session import Session
+
+    path = tmp_path / "air.sqlite"
+    names = build_demo_logbook(path, ["air"])
+    with Logbook.open(path) as book:
+        fixes = book.fix_arrays(names["air"])
+        assert np.isfinite(fixes.heading).sum() >= len(fixes) - 2  # two lines spoiled
+        assert (fixes.stw_kn == 135.0).all()
+    session = Session(path, voyage=names["air"])
+    try:
+        assert session.is_aircraft()
+        plan = [(t, r) for t, r in session.plan_revisions] or session.route
+        rv = reconcile(plan, session.fix_arrays())
+    finally:
+        session.close()
+    for leg in rv.legs:
+        assert abs((leg.set - 70.0 + 180.0) % 360.0 - 180.0) < 6.0, leg
+        assert abs(leg.drift_kn - 24.0) < 2.5, leg

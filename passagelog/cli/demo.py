@@ -63,7 +63,14 @@ def build_demo_logbook(path: Path, scenarios=SCENARIOS) -> dict[str, str]:
                 to_place=meta["to"], departure_utc=dep, zd_minutes=meta["zd_minutes"]))
             plan_id, revision = book.create_plan(route, "planned before departure")
             book.assign_plan(voyage, plan_id, revision, None)
-            book.add_fixes(voyage, iter_fixes(folder / "fixes.nmea"))
+            fixes = iter_fixes(folder / "fixes.nmea")
+            if "air" in meta:
+                # the aircraft's true airspeed (from its air data, not in the NMEA log) is
+                # logged with each fix as its speed through the air mass, so that set and
+                # drift found from heading and TAS are the wind
+                tas = float(meta["air"]["tas_kn"])
+                fixes = (replace(f, stw_kn=tas) for f in fixes)
+            book.add_fixes(voyage, fixes)
             for e in meta["entries"]:
                 book.add_entry(voyage, LogEntry(time_utc=_utc(e["time_utc"]), kind=e["kind"],
                                                 text=e["text"], zd_minutes=e["zd_minutes"]))
