@@ -459,3 +459,17 @@ def parse_sailing(text: str) -> str:
     if t not in aliases:
         raise InputError(f"sailing {text!r} is not one of: {', '.join(SAILINGS)} (or GC, RL)")
     return aliases[t]
+
+
+def other_schedules_note(route) -> str:
+    """For the Plan's head: which schedule the table shows when the route carries several
+    (an IEC 61174 route file may name more than one), '' when it carries one or none."""
+    if route is None:
+        return ""
+    names = list(dict.fromkeys(item.schedule_name for item in route.schedule))
+    if len(names) < 2:
+        return ""
+    main = route.main_schedule_name() or "(unnamed)"
+    return (f"schedule {main} (1 of {len(names)}; the others are kept as imported, "
+            "not shown)")
+

@@ -221,11 +221,12 @@ class PlanView(Vertical):
         state = "  [b]edited, not saved (Ctrl+S)[/b]" if self.dirty else ""
         dep = self.figures[0].etd_utc if self.figures else voyage.departure_utc
         fixed_dep = FIXED if self.rows and self.rows[0].etd_utc is not None else ""
+        others = pr.other_schedules_note(route)
         head.update(
             f"[b]{route.name if route else 'plan'}[/b] rev {rev}  {len(self.rows)} WP  "
             f"{total / NM_M:.1f} NM as planned (all GC {gc}, all RL {rl})  "
             f"ETD {fmt.utc_time(dep)}{fixed_dep}  ZD {self._zd_head()}"
-            f"{state}"
+            f"{'  ' if others else ''}{others}{state}"
         )
 
     def selected(self) -> int:

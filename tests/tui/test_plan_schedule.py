@@ -324,3 +324,19 @@ async def test_ship_times_follow_the_clock_changes_logged(session):
         assert table.get_cell("2", "etz") == minute(eta2).strftime("%d %H:%M") + " (0)"
         head = str(app.query_one("#plan-head").render())
         assert "ZD +1 at departure, 0 now" in head
+
+
+def test_the_plan_head_names_the_schedule_shown_when_a_route_carries_several():
+    from dataclasses import replace
+
+    from passagelog.model import ScheduleItem
+
+    route = sample_route()
+    assert pr.other_schedules_note(route) == ""
+    t = DEP + timedelta(hours=30)
+    two = replace(route, schedule=(ScheduleItem(3, eta_utc=t, schedule_name="Base"),
+                                   ScheduleItem(3, eta_utc=t + timedelta(hours=2),
+                                                schedule_name="Late tide")))
+    note = pr.other_schedules_note(two)
+    assert note.startswith(f"schedule {two.main_schedule_name()} (1 of 2;")
+    assert "kept as imported" in note
