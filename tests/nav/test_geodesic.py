@@ -33,7 +33,8 @@ def test_sphere_screen_bounds_hold_against_proj_geodesics():
     assert np.all(s >= (1.0 - e2) * a_sigma * (1 - 1e-12))
     assert np.all(s <= a_sigma / math.sqrt(1.0 - e2) * (1 + 1e-12))
     # azimuths are defined away from the poles and from coincident points
-    ok = (np.abs(lat1) < 89.9) & (np.abs(lat2) < 89.9) & (s > 1.0) & (a_sigma <= SPHERE_SCREEN_MAX_M)
+    ok = ((np.abs(lat1) < 89.9) & (np.abs(lat2) < 89.9) & (s > 1.0)
+          & (a_sigma <= SPHERE_SCREEN_MAX_M))
     d = np.abs((az - azi2 + 180.0) % 360.0 - 180.0)[ok]
     assert d.max() < 0.2  # about e^2/2 rad = 0.192 deg
     assert d.max() < SPHERE_AZIMUTH_TOL_DEG / 5
