@@ -104,6 +104,8 @@ SAME_WAYPOINT_M = 1.0
 DEFAULT_SKIP_M = 1852.0
 #: Chunk lengths of the state machine (fixes).
 CHUNK_MIN, CHUNK_START, CHUNK_MAX = 64, 1024, 131072
+#: A batch of inverse problems at least this long is split over two threads.
+SPLIT_MIN = 50000
 
 
 class _NoFoot(Exception):
@@ -379,34 +381,25 @@ def _made_good_compute(lat, lon, t, counting, d0, window_s, earth, leg_to_go, ro
         dep_fix = int(cand[0])
         at = np.flatnonzero(rows >= max(dep_fix, d0))
         after = rows[at]
-        pool = None
-        if after.size >= 50000:
-            from concurrent.futures import ThreadPoolExecutor
-
-            pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="review")
-        try:
-            # from the departure fix
-            d, a1, _ = _split_inverse(pool, np.full(after.size, lat[dep_fix]),
-                                      np.full(after.size, lon[dep_fix]), lat[after],
-                                      lon[after], earth)
-            el = t[after] - t[dep_fix]
-            out["dmg_dep_m"][at] = d
-            out["cmg_dep"][at] = np.where(d > 0.0, a1, np.nan)
-            with np.errstate(divide="ignore", invalid="ignore"):
-                out["smg_dep_kn"][at] = np.where(el > 0, d / el / KN_MPS, np.nan)
-            # over the window
-            j = np.minimum(np.searchsorted(state["t_cand"], t[after] - window_s, side="left"),
-                           cand.size - 1)
-            w0 = cand[j]
-            ok = (w0 < after) & (t[w0] < t[after])
-            smg = np.full(after.size, np.nan)
-            if ok.any():
-                aa, ww = after[ok], w0[ok]
-                dw, _, _ = _split_inverse(pool, lat[ww], lon[ww], lat[aa], lon[aa], earth)
-                smg[ok] = dw / (t[aa] - t[ww]) / KN_MPS
-        finally:
-            if pool is not None:
-                pool.shutdown(wait=True)
+        # from the departure fix
+        d, a1, _ = _inverse_two_threads(np.full(after.size, lat[dep_fix]),
+                                        np.full(after.size, lon[dep_fix]), lat[after],
+                                        lon[after], earth)
+        el = t[after] - t[dep_fix]
+        out["dmg_dep_m"][at] = d
+        out["cmg_dep"][at] = np.where(d > 0.0, a1, np.nan)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            out["smg_dep_kn"][at] = np.where(el > 0, d / el / KN_MPS, np.nan)
+        # over the window
+        j = np.minimum(np.searchsorted(state["t_cand"], t[after] - window_s, side="left"),
+                       cand.size - 1)
+        w0 = cand[j]
+        ok = (w0 < after) & (t[w0] < t[after])
+        smg = np.full(after.size, np.nan)
+        if ok.any():
+            aa, ww = after[ok], w0[ok]
+            dw, _, _ = _inverse_two_threads(lat[ww], lon[ww], lat[aa], lon[aa], earth)
+            smg[ok] = dw / (t[aa] - t[ww]) / KN_MPS
         out["smg_window_kn"][at] = smg
         vw = np.where(smg > MIN_PROGRESS_KN, smg * KN_MPS, np.nan)
         tt = t[after]
@@ -435,26 +428,28 @@ def _to_waypoint_compute(lat, lon, plans, rev_of, leg0, earth):
     def compute(idx: np.ndarray | None) -> dict[str, np.ndarray]:
         rows = np.arange(lat.size) if idx is None else idx
         w = offsets[rev[rows]] + leg[rows] + 1
-        pool = None
-        if rows.size >= 50000:
-            from concurrent.futures import ThreadPoolExecutor
-
-            pool = ThreadPoolExecutor(max_workers=1, thread_name_prefix="review")
-        try:
-            s, a1, _ = _split_inverse(pool, lat[rows], lon[rows], wlat[w], wlon[w], earth)
-        finally:
-            if pool is not None:
-                pool.shutdown(wait=True)
+        s, a1, _ = _inverse_two_threads(lat[rows], lon[rows], wlat[w], wlon[w], earth)
         return {"dtw_m": s, "btw": a1}
 
     return compute
 
 
+def _inverse_two_threads(lat1, lon1, lat2, lon2, earth):
+    """:func:`_split_inverse` with a second thread of its own (for the deferred columns,
+    worked out after the review's own thread pool is gone)."""
+    if lat2.size < SPLIT_MIN:
+        return inverse_np(lat1, lon1, lat2, lon2, earth)
+    from concurrent.futures import ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=1, thread_name_prefix="review") as pool:
+        return _split_inverse(pool, lat1, lon1, lat2, lon2, earth)
+
+
 def _split_inverse(pool, lat1, lon1, lat2, lon2, earth):
     """``inverse_np`` over two threads for a long batch (PROJ's C code runs without the
-    GIL): the first half in ``pool`` (if any), the second here."""
+    GIL): the first half in ``pool``, the second here."""
     n = lat2.size
-    if pool is None or n < 50000:
+    if n < SPLIT_MIN:
         return inverse_np(lat1, lon1, lat2, lon2, earth)
     h = n // 2
     first = pool.submit(inverse_np, lat1[:h], lon1[:h], lat2[:h], lon2[:h], earth)

@@ -156,6 +156,10 @@ class FixResults:
     ``delay_s`` = time now minus the plan's scheduled time at the same distance along the
     route (+ behind schedule). ``set``/``drift_kn``: the current found from the DR of the
     previous fix's heading and speed through the water to this fix.
+
+    The columns of :data:`DEFERRED` read like the others but are worked out when first read
+    (``deferred``, a :class:`DeferredColumns`); :meth:`value` reads one at a single row
+    without working out the whole column.
     """
 
     index: np.ndarray
