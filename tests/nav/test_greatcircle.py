@@ -511,7 +511,10 @@ def test_property_reversing_the_leg_flips_xte(lat1, lon1, lat2, lon2, plat, plon
 
     # the reversed shortest geodesic is the same curve only away from antipodal ends
     assume(leg.distance_m < 19_000_000)
-    x1, a1 = leg.offset(plat, plon)
+    try:
+        x1, a1 = leg.offset(plat, plon)
+    except GeometryError:  # at the pole of the leg: no foot (test_position_at_the_pole_...)
+        assume(False)
     x2, a2 = back.offset(plat, plon)
     assume(abs(a1 - leg.distance_m / 2) < 9_000_000)  # the same foot, not the far one
     assert x2 == pytest.approx(-x1, abs=1e-3)
